@@ -1,0 +1,158 @@
+package main
+
+import (
+	"encoding/json"
+	"fmt"
+	"io"
+	"math"
+	"strings"
+	"text/tabwriter"
+
+	"gridstage/solver"
+)
+
+// chainReport is what `discretize` prints for a Markov chain.
+type chainReport struct {
+	Kind         string
+	Process      map[string]any
+	Chain        *solver.Chain
+	Diag         solver.Diagnostics
+	Baseline     *solver.Chain
+	BaselineDiag *solver.Diagnostics
+}
+
+// chainJSON is the JSON shape (contract: grid is an array of state vectors,
+// transition an array of rows).
+type chainJSON struct {
+	Kind        string             `json:"kind"`
+	Process     map[string]any     `json:"process"`
+	Method      string             `json:"method"`
+	Moments     int                `json:"moments"`
+	Grid        [][]float64        `json:"grid"`
+	Transition  [][]float64        `json:"transition"`
+	Stationary  []float64          `json:"stationary"`
+	Matched     []int              `json:"matched"`
+	Diagnostics solver.Diagnostics `json:"diagnostics"`
+	Baseline    *baselineJSON      `json:"baseline,omitempty"`
+}
+
+type baselineJSON struct {
+	Method      string             `json:"method"`
+	Grid        [][]float64        `json:"grid"`
+	Transition  [][]float64        `json:"transition"`
+	Diagnostics solver.Diagnostics `json:"diagnostics"`
+}
+
+func gridRows(c *solver.Chain) [][]float64 {
+	out := make([][]float64, c.States())
+	for i := range out {
+		out[i] = c.State(i)
+	}
+	return out
+}
+
+func transitionRows(c *solver.Chain) [][]float64 {
+	out := make([][]float64, c.States())
+	for i := range out {
+		out[i] = c.Row(i)
+	}
+	return out
+}
+
+func (r chainReport) print(w io.Writer, asJSON bool) error {
+	if asJSON {
+		j := chainJSON{
+			Kind: r.Kind, Process: r.Process, Method: r.Chain.Method.String(), Moments: r.Chain.Moments,
+			Grid: gridRows(r.Chain), Transition: transitionRows(r.Chain), Stationary: r.Diag.Stationary,
+			Matched: r.Chain.Matched, Diagnostics: r.Diag,
+		}
+		if r.Baseline != nil {
+			j.Baseline = &baselineJSON{Method: r.Baseline.Method.String(), Grid: gridRows(r.Baseline),
+				Transition: transitionRows(r.Baseline), Diagnostics: *r.BaselineDiag}
+		}
+		enc := json.NewEncoder(w)
+		enc.SetIndent("", "  ")
+		return enc.Encode(j)
+	}
+	return r.printText(w)
+}
+
+func (r chainReport) printText(w io.Writer) error {
+	c, d := r.Chain, r.Diag
+	n := c.States()
+	fmt.Fprintf(w, "%s chain, method %s, %d states, %d moments requested, %d of %d states matched them all\n\n",
+		r.Kind, c.Method, n, c.Moments, n-c.Fallbacks(), n)
+	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)
+	fmt.Fprintln(tw, "state\tlevel\tstationary\tmatched\tmean err\tvar err\tskew err\tkurt err\t")
+	for i, s := range d.States {
+		pi := math.NaN()
+		if d.Stationary != nil {
+			pi = d.Stationary[i]
+		}
+		fmt.Fprintf(tw, "%d\t%.6g\t%.4g\t%d\t%s\t%s\t%s\t%s\t\n", i, s.Level[0], pi, s.Matched,
+			sci(s.RelErr.Mean), sci(s.RelErr.Var), sci(s.RelErr.Skew), sci(s.RelErr.Kurt))
+	}
+	tw.Flush()
+	fmt.Fprintln(w, "(errors in standardized units: mean/sd, var/var, skewness, kurtosis/kurtosis)")
+
+	fmt.Fprintf(w, "\ntransition matrix (row = from, column = to)\n")
+	for i := 0; i < n; i++ {
+		cells := make([]string, n)
+		for j, p := range c.Row(i) {
+			cells[j] = fmt.Sprintf("%.4f", p)
+		}
+		fmt.Fprintln(w, strings.Join(cells, " "))
+	}
+
+	fmt.Fprintln(w, "\nunconditional moments")
+	tw = tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)
+	header := "\ttrue\t" + c.Method.String() + "\t"
+	if r.BaselineDiag != nil {
+		header += r.Baseline.Method.String() + "\t"
+	}
+	fmt.Fprintln(tw, header)
+	row := func(name string, f func(solver.Summary) float64) {
+		line := fmt.Sprintf("%s\t%.6g\t%.6g\t", name, f(d.True), f(d.Chain))
+		if r.BaselineDiag != nil {
+			line += fmt.Sprintf("%.6g\t", f(r.BaselineDiag.Chain))
+		}
+		fmt.Fprintln(tw, line)
+	}
+	row("mean", func(s solver.Summary) float64 { return s.Mean })
+	row("sd", func(s solver.Summary) float64 { return s.SD })
+	row("skewness", func(s solver.Summary) float64 { return s.Skew })
+	row("kurtosis", func(s solver.Summary) float64 { return s.Kurt })
+	row("autocorrelation", func(s solver.Summary) float64 { return s.Autocorr })
+	tw.Flush()
+
+	fmt.Fprintln(w, "\nworst conditional-moment error over states (standardized units)")
+	tw = tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)
+	fmt.Fprintln(tw, "\t"+strings.TrimPrefix(header, "\ttrue\t"))
+	worst := func(name string, f func(solver.Moments) float64) {
+		line := fmt.Sprintf("%s\t%s\t", name, sci(f(d.WorstRelErr)))
+		if r.BaselineDiag != nil {
+			line += sci(f(r.BaselineDiag.WorstRelErr)) + "\t"
+		}
+		fmt.Fprintln(tw, line)
+	}
+	worst("mean", func(m solver.Moments) float64 { return m.Mean })
+	worst("variance", func(m solver.Moments) float64 { return m.Var })
+	worst("skewness", func(m solver.Moments) float64 { return m.Skew })
+	worst("kurtosis", func(m solver.Moments) float64 { return m.Kurt })
+	tw.Flush()
+	if d.StationaryErr != "" {
+		fmt.Fprintln(w, "\nwarning: "+d.StationaryErr)
+	}
+	if k := c.Fallbacks(); k > 0 {
+		fmt.Fprintf(w, "\nwarning: %d state(s) could not match all %d moments (the grid cannot carry them there); see the matched column\n", k, c.Moments)
+	}
+	return nil
+}
+
+// sci formats an error compactly.
+func sci(v float64) string {
+	if v == 0 {
+		return "0"
+	}
+	return fmt.Sprintf("%.1e", v)
+}

@@ -1,0 +1,129 @@
+package main
+
+import (
+	"fmt"
+
+	"github.com/spf13/cobra"
+
+	"gridstage/solver"
+)
+
+func newDiscretizeCmd() *cobra.Command {
+	cmd := &cobra.Command{
+		Use:   "discretize KIND",
+		Short: "Discretize one process given on the command line and print the chain",
+		Long: `Discretize one process given on the command line.
+
+Kinds:
+  ar1   first-order autoregression x' = (1-rho) mean + rho x + sigma z
+  iid   a static distribution (returns, transitory income) as weighted points
+
+Without --json the grid, the transition matrix and a diagnostics table
+(with a baseline method beside it) are printed for reading; with --json
+one JSON object is printed for scripts.`,
+		Args: func(_ *cobra.Command, args []string) error {
+			if len(args) == 0 {
+				return badInput("discretize needs a process kind: ar1 or iid")
+			}
+			return badInput("discretize: unknown process kind %q: want ar1 or iid", args[0])
+		},
+		RunE: func(*cobra.Command, []string) error { return nil },
+	}
+	cmd.AddCommand(newAR1Cmd(), newIIDCmd())
+	for _, add := range extraKinds {
+		cmd.AddCommand(add())
+	}
+	return cmd
+}
+
+// extraKinds lets further process kinds register with `discretize`.
+var extraKinds []func() *cobra.Command
+
+// methodSettings are the flags every discretization shares.
+type methodSettings struct {
+	states, moments int
+	method, grid    string
+	width           float64
+	floden          bool
+	compare         string
+	json            bool
+}
+
+func (m *methodSettings) register(cmd *cobra.Command, withMethod bool) {
+	fs := cmd.Flags()
+	fs.IntVar(&m.states, "states", 9, "number of grid points (2 to 10000)")
+	fs.IntVar(&m.moments, "moments", 0, "conditional moments to match exactly with maxent (default 4, fewer for heavy-tailed innovations)")
+	fs.StringVar(&m.grid, "grid", "even", "grid rule for maxent: even, gauss-hermite, gauss-legendre or quantile")
+	fs.Float64Var(&m.width, "width", 0, "half-width of even/Gauss-Legendre/Tauchen grids in unconditional s.d. (default sqrt(states-1); 3 for tauchen)")
+	fs.BoolVar(&m.json, "json", false, "print one JSON object instead of tables")
+	if withMethod {
+		fs.StringVar(&m.method, "method", "maxent", "maxent, tauchen, tauchen-hussey or rouwenhorst")
+		fs.BoolVar(&m.floden, "floden", false, "tauchen-hussey: use the Flodén (2008) base standard deviation")
+		fs.StringVar(&m.compare, "compare", "", "baseline method shown beside the chain, or none (default tauchen; rouwenhorst when --method is tauchen)")
+	}
+}
+
+// settings validates the shared flags and converts them.
+func (m *methodSettings) settings(cmd *cobra.Command) (solver.Settings, error) {
+	var s solver.Settings
+	if err := intRange("states", m.states, 2, 10000); err != nil {
+		return s, err
+	}
+	if cmd.Flags().Changed("moments") {
+		if err := intRange("moments", m.moments, 1, 8); err != nil {
+			return s, err
+		}
+	}
+	if err := choice("grid", m.grid, solver.GridRuleNames()); err != nil {
+		return s, err
+	}
+	if cmd.Flags().Changed("width") {
+		if err := positive("width", m.width); err != nil {
+			return s, err
+		}
+	}
+	method := solver.MaxEnt
+	if m.method != "" {
+		if err := choice("method", m.method, solver.MethodNames()); err != nil {
+			return s, err
+		}
+		method, _ = solver.ParseMethod(m.method)
+	}
+	if cmd.Flags().Changed("moments") && method != solver.MaxEnt {
+		return s, badInput("--moments applies to --method maxent only: %s matches a fixed set of moments", method)
+	}
+	if cmd.Flags().Changed("grid") && method != solver.MaxEnt {
+		return s, badInput("--grid applies to --method maxent only: %s places its own grid", method)
+	}
+	if m.floden && method != solver.TauchenHussey {
+		return s, badInput("--floden applies to --method tauchen-hussey only")
+	}
+	grid, _ := solver.ParseGridRule(m.grid)
+	return solver.Settings{States: m.states, Moments: m.moments, Method: method, Grid: grid, Width: m.width, Floden: m.floden}, nil
+}
+
+// baseline returns the comparison method, or false for none.
+func (m *methodSettings) baseline(main solver.Method) (solver.Method, bool, error) {
+	switch m.compare {
+	case "none":
+		return 0, false, nil
+	case "":
+		if main == solver.Tauchen {
+			return solver.Rouwenhorst, true, nil
+		}
+		return solver.Tauchen, true, nil
+	}
+	if err := choice("compare", m.compare, append(solver.MethodNames(), "none")); err != nil {
+		return 0, false, err
+	}
+	b, _ := solver.ParseMethod(m.compare)
+	return b, true, nil
+}
+
+// paramFlags maps solver parameter names to the flags that set them.
+var paramFlags = map[string]string{
+	"rho": "rho", "sigma": "sigma", "mean": "mean", "states": "states",
+	"moments": "moments", "width": "width", "grid": "grid",
+}
+
+var _ = fmt.Sprint

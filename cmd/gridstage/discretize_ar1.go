@@ -1,0 +1,98 @@
+package main
+
+import (
+	"github.com/spf13/cobra"
+
+	"gridstage/solver"
+)
+
+func newAR1Cmd() *cobra.Command {
+	var (
+		rho, sigma, mean float64
+		ms               methodSettings
+		shock            shockFlags
+	)
+	cmd := &cobra.Command{
+		Use:   "ar1 --rho R --sigma S [--mean M] --states N [flags]",
+		Short: "AR(1): x' = (1-rho) mean + rho x + sigma z, z with mean 0 and variance 1",
+		Args:  cobra.NoArgs,
+		RunE: func(cmd *cobra.Command, _ []string) error {
+			for _, f := range []string{"rho", "sigma"} {
+				if !cmd.Flags().Changed(f) {
+					return badInput("--%s is required", f)
+				}
+			}
+			s, err := ms.settings(cmd)
+			if err != nil {
+				return err
+			}
+			z, err := innovation(&shock)
+			if err != nil {
+				return err
+			}
+			p := solver.AR1{Mean: mean, Rho: rho, Sigma: sigma, Shock: z}
+			if err := p.Validate(); err != nil {
+				return flagError(err, paramFlags)
+			}
+			c, err := p.Discretize(s)
+			if err != nil {
+				return flagError(err, paramFlags)
+			}
+			out := chainReport{Kind: "ar1", Process: ar1Params(p, shock), Chain: c, Diag: solver.Diagnose(c, p)}
+			if b, ok, err := ms.baseline(s.Method); err != nil {
+				return err
+			} else if ok {
+				bs := solver.Settings{States: s.States, Method: b}
+				bc, err := p.Discretize(bs)
+				if err != nil {
+					return flagError(err, paramFlags)
+				}
+				bd := solver.Diagnose(bc, p)
+				out.Baseline, out.BaselineDiag = bc, &bd
+			}
+			return out.print(cmd.OutOrStdout(), ms.json)
+		},
+	}
+	fs := cmd.Flags()
+	fs.Float64Var(&rho, "rho", 0, "persistence, in (-1, 1) (required)")
+	fs.Float64Var(&sigma, "sigma", 0, "innovation standard deviation, > 0 (required)")
+	fs.Float64Var(&mean, "mean", 0, "unconditional mean")
+	ms.register(cmd, true)
+	shock.register(fs, "innovation", "normal", "innovation law: normal, mixture, t or laplace (standardized to mean 0, variance 1)")
+	return cmd
+}
+
+// innovation builds the standardized innovation law (nil for normal).
+func innovation(s *shockFlags) (solver.Distribution, error) {
+	if err := choice("innovation", s.family, []string{"normal", "mixture", "t", "laplace"}); err != nil {
+		return nil, err
+	}
+	switch s.family {
+	case "mixture":
+		m, err := s.mixture()
+		if err != nil {
+			return nil, err
+		}
+		return solver.Standardized{Base: m}, nil
+	case "t":
+		if err := s.checkNu(2); err != nil {
+			return nil, err
+		}
+		return solver.Standardized{Base: solver.StudentT{Nu: s.nu, Scale: 1}}, nil
+	case "laplace":
+		return solver.Standardized{Base: solver.Laplace{Scale: 1}}, nil
+	}
+	return nil, nil
+}
+
+// ar1Params records the process for the JSON output.
+func ar1Params(p solver.AR1, s shockFlags) map[string]any {
+	m := map[string]any{"rho": p.Rho, "sigma": p.Sigma, "mean": p.Mean, "innovation": s.family}
+	switch s.family {
+	case "t":
+		m["nu"] = s.nu
+	case "mixture":
+		m["mix_weights"], m["mix_means"], m["mix_sds"] = s.mixWeights, s.mixMeans, s.mixSDs
+	}
+	return m
+}

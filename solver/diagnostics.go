@@ -1,0 +1,128 @@
+package solver
+
+import "math"
+
+// Moments are the first four moments of a conditional distribution.
+type Moments struct {
+	Mean float64 `json:"mean"`
+	Var  float64 `json:"variance"`
+	Skew float64 `json:"skewness"`
+	Kurt float64 `json:"kurtosis"`
+}
+
+// Summary describes a stationary distribution.
+type Summary struct {
+	Mean     float64 `json:"mean"`
+	SD       float64 `json:"sd"`
+	Skew     float64 `json:"skewness"`
+	Kurt     float64 `json:"kurtosis"`
+	Autocorr float64 `json:"autocorrelation"`
+}
+
+// Truth gives the exact moments of the process a chain approximates.
+type Truth interface {
+	// Conditional returns the moments of next period's state given state x
+	// (for vector processes, of the first component).
+	Conditional(x []float64) Moments
+	// Unconditional returns the stationary moments.
+	Unconditional() Summary
+}
+
+// StateCheck compares a chain's conditional moments in one state with the
+// truth.
+type StateCheck struct {
+	Level   []float64 `json:"level"`
+	Chain   Moments   `json:"chain"`
+	True    Moments   `json:"true"`
+	AbsErr  Moments   `json:"abs_error"`
+	RelErr  Moments   `json:"std_error"`
+	Matched int       `json:"matched"`
+}
+
+// Diagnostics compares a chain with the process it approximates.
+//
+// AbsErr is chain minus truth in the process's units. RelErr is the error in
+// standardized units: mean error / true conditional s.d., variance error /
+// true variance, skewness error, kurtosis error / true kurtosis. These are the
+// units in which moment matching is judged.
+type Diagnostics struct {
+	Method     string       `json:"method"`
+	States     []StateCheck `json:"states"`
+	Stationary []float64    `json:"stationary"`
+	Chain      Summary      `json:"chain_unconditional"`
+	True       Summary      `json:"true_unconditional"`
+	// WorstRelErr holds the largest |RelErr| of each moment over all states.
+	WorstRelErr Moments `json:"worst_std_error"`
+	Fallbacks   int     `json:"fallback_states"`
+	// StationaryErr is non-empty when the stationary distribution could not
+	// be computed (a reducible chain).
+	StationaryErr string `json:"stationary_error,omitempty"`
+}
+
+// Diagnose computes the diagnostics of a univariate chain against the truth.
+// The chain is not modified.
+func Diagnose(c *Chain, truth Truth) Diagnostics {
+	n := c.States()
+	d := Diagnostics{Method: c.Method.String(), States: make([]StateCheck, n), Fallbacks: c.Fallbacks()}
+	x := func(j int) float64 { return c.Grid[j*c.Dim] }
+	for i := 0; i < n; i++ {
+		row := c.Row(i)
+		cm := weightedMoments(row, x)
+		tm := truth.Conditional(c.State(i))
+		sd := math.Sqrt(tm.Var)
+		abs := Moments{cm.Mean - tm.Mean, cm.Var - tm.Var, cm.Skew - tm.Skew, cm.Kurt - tm.Kurt}
+		rel := Moments{abs.Mean / sd, abs.Var / tm.Var, abs.Skew, abs.Kurt / tm.Kurt}
+		d.States[i] = StateCheck{
+			Level: append([]float64(nil), c.State(i)...), Chain: cm, True: tm,
+			AbsErr: abs, RelErr: rel, Matched: c.Matched[i],
+		}
+		d.WorstRelErr.Mean = math.Max(d.WorstRelErr.Mean, math.Abs(rel.Mean))
+		d.WorstRelErr.Var = math.Max(d.WorstRelErr.Var, math.Abs(rel.Var))
+		d.WorstRelErr.Skew = math.Max(d.WorstRelErr.Skew, math.Abs(rel.Skew))
+		d.WorstRelErr.Kurt = math.Max(d.WorstRelErr.Kurt, math.Abs(rel.Kurt))
+	}
+	d.True = truth.Unconditional()
+	pi, err := Stationary(c.Transition, n)
+	if err != nil {
+		d.StationaryErr = err.Error()
+		return d
+	}
+	d.Stationary = pi
+	um := weightedMoments(pi, x)
+	d.Chain = Summary{Mean: um.Mean, SD: math.Sqrt(um.Var), Skew: um.Skew, Kurt: um.Kurt}
+	// Autocorrelation: Cov(x_t, x_{t+1}) / Var under π, using E[x'|i].
+	var cov float64
+	for i := 0; i < n; i++ {
+		var next float64
+		for j, p := range c.Row(i) {
+			next += p * x(j)
+		}
+		cov += pi[i] * (x(i) - um.Mean) * (next - um.Mean)
+	}
+	d.Chain.Autocorr = cov / um.Var
+	return d
+}
+
+// weightedMoments returns mean, variance, skewness and kurtosis of the
+// discrete distribution with probabilities w on points x(j).
+func weightedMoments(w []float64, x func(int) float64) Moments {
+	var mean float64
+	for j, p := range w {
+		mean += p * x(j)
+	}
+	var m2, m3, m4 float64
+	for j, p := range w {
+		d := x(j) - mean
+		d2 := d * d
+		m2 += p * d2
+		m3 += p * d2 * d
+		m4 += p * d2 * d2
+	}
+	return Moments{Mean: mean, Var: m2, Skew: m3 / math.Pow(m2, 1.5), Kurt: m4 / (m2 * m2)}
+}
+
+// WeightedMoments returns the mean, variance, skewness and kurtosis of the
+// discrete distribution with probabilities w on the points x.
+func WeightedMoments(w, x []float64) Moments {
+	return weightedMoments(w, func(j int) float64 { return x[j] })
+}

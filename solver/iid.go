@@ -1,0 +1,84 @@
+package solver
+
+import "math"
+
+// IID is a static distribution to be replaced by a discrete one: the draws
+// are independent over time, so a single probability vector suffices.
+type IID struct{ Dist Distribution }
+
+// Discrete is a discrete distribution on Nodes with probabilities Weights.
+type Discrete struct {
+	Nodes, Weights []float64
+	// Moments is the number of moments requested; Matched the number matched.
+	Moments, Matched int
+}
+
+// Discretize returns a discrete distribution with s.States points whose
+// first s.Moments standardized moments equal those of the distribution
+// (falling back to fewer when infeasible). Only MaxEnt applies. Even and
+// Gauss-Legendre grids span Width standard deviations about the mean,
+// clipped to the support; on a bounded support the even grid uses cell
+// midpoints so no point sits where the density may vanish or blow up.
+func (p IID) Discretize(s Settings) (*Discrete, error) {
+	if err := checkStates(s.States); err != nil {
+		return nil, err
+	}
+	if s.Method != MaxEnt {
+		return nil, badParam("method", float64(s.Method), "maxent for i.i.d. distributions")
+	}
+	if !(s.Width >= 0) || math.IsInf(s.Width, 1) {
+		return nil, badParam("width", s.Width, "finite and > 0")
+	}
+	L, err := resolveMoments(s, p.Dist)
+	if err != nil {
+		return nil, err
+	}
+	n := s.States
+	mean, sd := p.Dist.Mean(), p.Dist.StdDev()
+	lo, hi := p.Dist.Support()
+	width := s.Width
+	if width == 0 {
+		width = DefaultWidth(n)
+	}
+	a, b := math.Max(lo, mean-width*sd), math.Min(hi, mean+width*sd)
+	var nodes, logW []float64
+	switch {
+	case s.Grid == GridGaussHermite && (!math.IsInf(lo, -1) || !math.IsInf(hi, 1)):
+		return nil, badParam("grid", float64(s.Grid), "a rule other than gauss-hermite for a distribution on a bounded or half-bounded support")
+	case s.Grid == GridEven && (a > mean-width*sd || b < mean+width*sd):
+		h := (b - a) / float64(n)
+		nodes, logW = make([]float64, n), make([]float64, n)
+		for j := range nodes {
+			nodes[j] = a + h*(float64(j)+0.5)
+			logW[j] = math.Log(h)
+		}
+	case s.Grid == GridGaussLegendre:
+		r := GaussLegendre(n, a, b)
+		nodes, logW = r.Nodes, make([]float64, n)
+		for j, w := range r.Weights {
+			logW[j] = math.Log(w)
+		}
+	default:
+		nodes, logW = placeGrid(s.Grid, n, mean, sd, width, p.Dist)
+	}
+	shock := Standardized{p.Dist}
+	law := conditional{Mean: []float64{mean}, SD: []float64{sd}, Shock: shock}
+	w := make([]float64, n)
+	matched := []int{0}
+	maxentRows(nodes, logW, law, L, w, matched)
+	return &Discrete{Nodes: nodes, Weights: w, Moments: L, Matched: matched[0]}, nil
+}
+
+// Conditional returns the distribution's moments (they do not depend on x).
+func (p IID) Conditional([]float64) Moments {
+	sk, _ := p.Dist.StdMoment(3)
+	ku, _ := p.Dist.StdMoment(4)
+	sd := p.Dist.StdDev()
+	return Moments{Mean: p.Dist.Mean(), Var: sd * sd, Skew: sk, Kurt: ku}
+}
+
+// Unconditional returns the distribution's moments with autocorrelation 0.
+func (p IID) Unconditional() Summary {
+	m := p.Conditional(nil)
+	return Summary{Mean: m.Mean, SD: math.Sqrt(m.Var), Skew: m.Skew, Kurt: m.Kurt}
+}

@@ -1,0 +1,259 @@
+package solver
+
+import "math"
+
+// Tolerances of the dual Newton solver. Moment errors are measured in
+// standardized units (deviations divided by the conditional s.d.), so one
+// tolerance serves every scale.
+const (
+	// dualTol is the gradient (= moment error) at which Newton stops.
+	dualTol = 1e-13
+	// dualAccept is the largest moment error accepted when Newton stalls at
+	// the floating-point floor; anything larger counts as infeasible.
+	dualAccept = 1e-11
+	// dualMaxIter bounds Newton iterations. Feasible problems converge
+	// quadratically in well under 30; the rest are infeasible.
+	dualMaxIter = 60
+)
+
+// Dual solves the maximum-entropy moment-matching problem for one
+// distribution: given log prior weights logq (length n) and deviations
+// dev (n×L row-major, dev[j*L+k] = T_k(x_j) − T̄_k), it finds
+//
+//	p_j ∝ q_j exp(λ·dev_j)
+//
+// with Σ_j p_j dev_j = 0 by minimizing the convex dual
+// log Σ_j q_j exp(λ·dev_j) with Newton's method and a backtracking line
+// search. A Dual reuses its buffers across calls; it is not safe for
+// concurrent use. The zero value is ready to use.
+type Dual struct {
+	a, p                         []float64
+	lam, grad, step, trial, chol []float64
+	hess                         []float64
+	lastIter                     int
+}
+
+func (w *Dual) resize(n, L int) {
+	grow := func(s []float64, m int) []float64 {
+		if cap(s) < m {
+			return make([]float64, m)
+		}
+		return s[:m]
+	}
+	w.a, w.p = grow(w.a, n), grow(w.p, n)
+	w.lam, w.grad, w.step, w.trial = grow(w.lam, L), grow(w.grad, L), grow(w.step, L), grow(w.trial, L)
+	w.hess, w.chol = grow(w.hess, L*L), grow(w.chol, L*L)
+}
+
+// Solve runs Newton's method from the multipliers lam0 (nil or zeros for a
+// cold start) and writes the probabilities into p (length n). It returns
+// the multipliers (valid until the next call) and whether the moments were
+// matched to within tolerance. On failure p holds the last iterate.
+func (w *Dual) Solve(logq, dev []float64, L int, lam0, p []float64) (lam []float64, ok bool) {
+	n := len(logq)
+	if len(dev) != n*L || len(p) != n {
+		panic("solver: Dual.Solve shape mismatch")
+	}
+	w.resize(n, L)
+	if lam0 != nil {
+		copy(w.lam, lam0)
+	} else {
+		clear(w.lam)
+	}
+	if L == 0 {
+		w.eval(logq, dev, 0, w.lam)
+		copy(p, w.p)
+		return w.lam, true
+	}
+	if !hullContainsZero(dev, n, L) {
+		return w.lam, false
+	}
+	f := w.eval(logq, dev, L, w.lam)
+	ok = false
+	for it := 0; it < dualMaxIter; it++ {
+		w.lastIter = it
+		w.gradient(dev, n, L)
+		gmax := maxAbs(w.grad)
+		if gmax <= dualTol {
+			ok = true
+			break
+		}
+		w.hessian(dev, n, L)
+		if !cholesky(w.hess, w.chol, L) {
+			ok = gmax <= dualAccept
+			break
+		}
+		cholSolve(w.chol, L, w.grad, w.step)
+		var slope float64
+		for k := range w.step {
+			w.step[k] = -w.step[k]
+			slope += w.grad[k] * w.step[k]
+		}
+		// Near the optimum the decrease of the dual (about slope/2) falls
+		// below the rounding of f, so the Armijo test can no longer judge a
+		// step; there Newton's full step is safe (quadratic convergence) and
+		// is taken unchecked.
+		quadratic := -slope <= 1e-10*(1+math.Abs(f))
+		t := 1.0
+		accepted := false
+		for ls := 0; ls < 40; ls++ {
+			for k := range w.trial {
+				w.trial[k] = w.lam[k] + t*w.step[k]
+			}
+			ft := w.eval(logq, dev, L, w.trial)
+			if ft <= f+1e-4*t*slope || quadratic {
+				f = ft
+				copy(w.lam, w.trial)
+				accepted = true
+				break
+			}
+			t /= 2
+		}
+		if !accepted {
+			// No decrease is possible: either converged to the floating-point
+			// floor or the dual is unbounded below (infeasible target).
+			w.eval(logq, dev, L, w.lam)
+			w.gradient(dev, n, L)
+			ok = maxAbs(w.grad) <= dualAccept
+			break
+		}
+	}
+	copy(p, w.p)
+	return w.lam, ok && allFinite(p)
+}
+
+// eval sets w.p to the normalized probabilities at λ and returns the dual
+// objective log Σ exp(a_j), computed stably around the largest a_j.
+func (w *Dual) eval(logq, dev []float64, L int, lam []float64) float64 {
+	best := math.Inf(-1)
+	for j := range logq {
+		a := logq[j]
+		row := dev[j*L : j*L+L]
+		for k, d := range row {
+			a += lam[k] * d
+		}
+		w.a[j] = a
+		if a > best {
+			best = a
+		}
+	}
+	var s float64
+	for j, a := range w.a {
+		e := math.Exp(a - best)
+		w.p[j] = e
+		s += e
+	}
+	inv := 1 / s
+	for j := range w.p {
+		w.p[j] *= inv
+	}
+	return best + math.Log(s)
+}
+
+// gradient sets w.grad = Σ_j p_j dev_j, the current moment error.
+func (w *Dual) gradient(dev []float64, n, L int) {
+	clear(w.grad)
+	for j := 0; j < n; j++ {
+		pj := w.p[j]
+		row := dev[j*L : j*L+L]
+		for k, d := range row {
+			w.grad[k] += pj * d
+		}
+	}
+}
+
+// hessian sets w.hess = Σ_j p_j (dev_j − g)(dev_j − g)ᵀ, the covariance of
+// the moment functions under p (centred for accuracy).
+func (w *Dual) hessian(dev []float64, n, L int) {
+	clear(w.hess)
+	for j := 0; j < n; j++ {
+		pj := w.p[j]
+		if pj == 0 {
+			continue
+		}
+		row := dev[j*L : j*L+L]
+		for r := 0; r < L; r++ {
+			dr := pj * (row[r] - w.grad[r])
+			for c := 0; c <= r; c++ {
+				w.hess[r*L+c] += dr * (row[c] - w.grad[c])
+			}
+		}
+	}
+}
+
+// hullContainsZero is a cheap necessary condition for feasibility: every
+// moment deviation must take both signs (or vanish) across the grid.
+func hullContainsZero(dev []float64, n, L int) bool {
+	for k := 0; k < L; k++ {
+		neg, pos := false, false
+		for j := 0; j < n; j++ {
+			d := dev[j*L+k]
+			neg = neg || d < 0
+			pos = pos || d > 0
+		}
+		if !(neg && pos) {
+			return false
+		}
+	}
+	return true
+}
+
+// cholesky factors the lower triangle of the L×L matrix a into l (a = l lᵀ)
+// and reports whether a is numerically positive definite.
+func cholesky(a, l []float64, L int) bool {
+	clear(l)
+	for r := 0; r < L; r++ {
+		for c := 0; c <= r; c++ {
+			s := a[r*L+c]
+			for k := 0; k < c; k++ {
+				s -= l[r*L+k] * l[c*L+k]
+			}
+			if r == c {
+				if !(s > 1e-300) || s <= 1e-14*a[r*L+r] {
+					return false
+				}
+				l[r*L+r] = math.Sqrt(s)
+			} else {
+				l[r*L+c] = s / l[c*L+c]
+			}
+		}
+	}
+	return true
+}
+
+// cholSolve solves l lᵀ x = b.
+func cholSolve(l []float64, L int, b, x []float64) {
+	for r := 0; r < L; r++ {
+		s := b[r]
+		for k := 0; k < r; k++ {
+			s -= l[r*L+k] * x[k]
+		}
+		x[r] = s / l[r*L+r]
+	}
+	for r := L - 1; r >= 0; r-- {
+		s := x[r]
+		for k := r + 1; k < L; k++ {
+			s -= l[k*L+r] * x[k]
+		}
+		x[r] = s / l[r*L+r]
+	}
+}
+
+func maxAbs(v []float64) float64 {
+	var m float64
+	for _, x := range v {
+		if a := math.Abs(x); a > m || math.IsNaN(x) {
+			m = a
+		}
+	}
+	return m
+}
+
+func allFinite(v []float64) bool {
+	for _, x := range v {
+		if math.IsNaN(x) || math.IsInf(x, 0) {
+			return false
+		}
+	}
+	return true
+}
