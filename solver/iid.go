@@ -82,3 +82,17 @@ func (p IID) Unconditional() Summary {
 	m := p.Conditional(nil)
 	return Summary{Mean: m.Mean, SD: math.Sqrt(m.Var), Skew: m.Skew, Kurt: m.Kurt}
 }
+
+// Chain returns the Markov chain of the i.i.d. process: every row equals
+// the weights, so downstream stages can treat static and persistent shocks
+// alike.
+func (d *Discrete) Chain() *Chain {
+	n := len(d.Nodes)
+	c := &Chain{Dim: 1, Grid: append([]float64(nil), d.Nodes...), Transition: make([]float64, n*n),
+		Method: MaxEnt, Moments: d.Moments, Matched: make([]int, n)}
+	for i := 0; i < n; i++ {
+		copy(c.Transition[i*n:(i+1)*n], d.Weights)
+		c.Matched[i] = d.Matched
+	}
+	return c
+}
