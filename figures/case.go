@@ -1,0 +1,69 @@
+package figures
+
+import (
+	"fmt"
+
+	"gridstage/solver"
+)
+
+// Case is one chain with everything its figures need. Figures read it and
+// never modify it.
+type Case struct {
+	// Label names the chain in titles, e.g. "wage shock, point 3".
+	Label string
+	// Units names the unit of the state levels in axis labels, e.g.
+	// "log wage"; empty means "state level".
+	Units string
+	// Chain is the chain under study.
+	Chain *solver.Chain
+	// Diag holds the chain's diagnostics; nil omits the error figure.
+	Diag *solver.Diagnostics
+	// Baseline and BaselineDiag are an optional comparison chain.
+	Baseline     *solver.Chain
+	BaselineDiag *solver.Diagnostics
+	// Law is the true stationary law of the process.
+	Law Law
+}
+
+// Law is the true stationary law of a process, as far as figures draw it.
+type Law struct {
+	// Mean and SD are the stationary mean and standard deviation of the
+	// first component; SD = 0 means unknown and no overlay is drawn.
+	Mean, SD float64
+	// Gaussian reports whether the stationary law is exactly normal (a
+	// Gaussian AR(1) or VAR). Otherwise the overlay is a normal reference
+	// with the same mean and s.d. and is labelled as such.
+	Gaussian bool
+	// Cov is the true stationary covariance of a vector process, Dim×Dim
+	// row-major, and MeanVec its mean; nil if unknown.
+	Cov, MeanVec []float64
+}
+
+// units returns the axis label for state levels.
+func (c Case) units() string {
+	if c.Units == "" {
+		return "state level"
+	}
+	return c.Units
+}
+
+// stationary returns the chain's stationary distribution: the one in the
+// diagnostics when present, else computed afresh.
+func stationaryOf(c *solver.Chain, d *solver.Diagnostics) ([]float64, error) {
+	if d != nil && len(d.Stationary) == c.States() {
+		return d.Stationary, nil
+	}
+	pi, err := solver.Stationary(c.Transition, c.States())
+	if err != nil {
+		return nil, fmt.Errorf("figures: %w", err)
+	}
+	return pi, nil
+}
+
+// checkChain panics on a malformed chain: a programmer error, since
+// readers validate shapes before building a Case.
+func checkChain(c *solver.Chain) {
+	if c == nil || c.Dim < 1 || len(c.Grid)%c.Dim != 0 || len(c.Transition) != c.States()*c.States() {
+		panic("figures: malformed chain")
+	}
+}

@@ -1,0 +1,38 @@
+package figures
+
+// For returns every figure that applies to the case, in reading order:
+// the stationary mass (univariate) or the plane (vector chains), the
+// transition heat map, and the moment errors when diagnostics exist. It
+// fails only when the stationary distribution is not unique, which the
+// first figure needs.
+func For(c Case) ([]Figure, error) {
+	checkChain(c.Chain)
+	var figs []Figure
+	if c.Chain.Dim == 1 {
+		m, err := MassOf(c)
+		if err != nil {
+			return nil, err
+		}
+		figs = append(figs, massFigure(c, m))
+	} else {
+		pl, err := PlaneOf(c)
+		if err != nil {
+			return nil, err
+		}
+		figs = append(figs, planeFigure(c, pl))
+	}
+	figs = append(figs, flowFigure(c, FlowOf(c)))
+	if me, ok := MomentErrorsOf(c); ok {
+		figs = append(figs, momentsFigure(c, me))
+	}
+	return figs, nil
+}
+
+// ForLifeCycle returns the life-cycle figure.
+func ForLifeCycle(l LifeCycle) (Figure, error) {
+	am, err := AgeMassOf(l)
+	if err != nil {
+		return Figure{}, err
+	}
+	return agesFigure(l, am, append([]float64(nil), l.Ages...)), nil
+}
