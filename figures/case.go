@@ -18,8 +18,8 @@ type Case struct {
 	Chain *solver.Chain
 	// Diag holds the chain's diagnostics; nil omits the error figure.
 	Diag *solver.Diagnostics
-	// Baseline and BaselineDiag are an optional comparison chain.
-	Baseline     *solver.Chain
+	// BaselineDiag optionally holds the diagnostics of a baseline method's
+	// chain for the same process, drawn beside the chain's errors.
 	BaselineDiag *solver.Diagnostics
 	// Law is the true stationary law of the process.
 	Law Law

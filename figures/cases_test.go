@@ -24,7 +24,7 @@ func gaussianCase(t *testing.T, n int) Case {
 	}
 	d, bd := solver.Diagnose(c, wageShock), solver.Diagnose(b, wageShock)
 	return Case{
-		Label: "wage-shock", Units: "log wage", Chain: c, Diag: &d, Baseline: b, BaselineDiag: &bd,
+		Label: "wage-shock", Units: "log wage", Chain: c, Diag: &d, BaselineDiag: &bd,
 		Law: Law{Mean: wageShock.Mean, SD: wageShock.StationarySD(), Gaussian: true},
 	}
 }

@@ -182,7 +182,7 @@ func TestMomentErrorsArePlottedAsDiagnosed(t *testing.T) {
 		t.Fatal(err)
 	}
 	d, bd := solver.Diagnose(c, p), solver.Diagnose(b, p)
-	m, ok := MomentErrorsOf(Case{Chain: c, Diag: &d, Baseline: b, BaselineDiag: &bd})
+	m, ok := MomentErrorsOf(Case{Chain: c, Diag: &d, BaselineDiag: &bd})
 	if !ok || len(m.Series) != 2 {
 		t.Fatalf("ok=%v with %d series, want two series", ok, len(m.Series))
 	}
@@ -369,7 +369,7 @@ func deepCopy(c Case) Case {
 		return &x
 	}
 	out := c
-	out.Chain, out.Baseline = cp(c.Chain), cp(c.Baseline)
+	out.Chain = cp(c.Chain)
 	out.Diag, out.BaselineDiag = cd(c.Diag), cd(c.BaselineDiag)
 	out.Law.Cov = append([]float64(nil), c.Law.Cov...)
 	out.Law.MeanVec = append([]float64(nil), c.Law.MeanVec...)

@@ -74,29 +74,37 @@ func MomentErrorsOf(c Case) (m MomentErrors, ok bool) {
 	if byLevel {
 		m.XLabel = c.units()
 	}
-	m.Series = append(m.Series, errorSeries(c.Chain, c.Diag, byLevel))
-	if c.Baseline != nil && c.BaselineDiag != nil && len(c.BaselineDiag.States) == c.Baseline.States() {
-		m.Series = append(m.Series, errorSeries(c.Baseline, c.BaselineDiag, byLevel))
+	main := errorSeries(c.Diag, c.Chain.Moments, byLevel)
+	main.Method = c.Chain.Method.String()
+	m.Series = append(m.Series, main)
+	if b := c.BaselineDiag; b != nil && len(b.States) > 0 {
+		requested := 0
+		if method, err := solver.ParseMethod(b.Method); err == nil {
+			requested = max(method.ExactMoments(), 0)
+		}
+		m.Series = append(m.Series, errorSeries(b, requested, byLevel))
 	}
 	return m, true
 }
 
-func errorSeries(c *solver.Chain, d *solver.Diagnostics, byLevel bool) ErrorSeries {
-	n := c.States()
-	s := ErrorSeries{Method: c.Method.String(), Requested: c.Moments, X: make([]float64, n), Fallback: make([]bool, n)}
+// errorSeries reads one chain's errors from its diagnostics, which carry
+// each state's level and matched count.
+func errorSeries(d *solver.Diagnostics, requested int, byLevel bool) ErrorSeries {
+	n := len(d.States)
+	s := ErrorSeries{Method: d.Method, Requested: requested, X: make([]float64, n), Fallback: make([]bool, n)}
 	for k := range s.Abs {
 		s.Abs[k] = make([]float64, n)
 	}
 	for i, st := range d.States {
 		s.X[i] = float64(i)
-		if byLevel {
-			s.X[i] = c.Grid[i*c.Dim]
+		if byLevel && len(st.Level) > 0 {
+			s.X[i] = st.Level[0]
 		}
 		s.Abs[0][i] = math.Abs(st.RelErr.Mean)
 		s.Abs[1][i] = math.Abs(st.RelErr.Var)
 		s.Abs[2][i] = math.Abs(st.RelErr.Skew)
 		s.Abs[3][i] = math.Abs(st.RelErr.Kurt)
-		s.Fallback[i] = i < len(c.Matched) && c.Matched[i] < c.Moments
+		s.Fallback[i] = st.Matched < requested
 	}
 	return s
 }
