@@ -22,9 +22,26 @@ func shockTargets(shock Distribution, L int) []float64 {
 	return t
 }
 
+// fallbackLadder lists the moment counts tried in turn when L moments are
+// requested: L itself, then even counts downwards, then the mean alone
+// (4 → 2 → 1, 5 → 4 → 2 → 1). Moments are dropped in pairs because an odd
+// moment without the even one above it leaves the tails unconstrained.
+func fallbackLadder(L int) []int {
+	ladder := []int{L}
+	for l := L - 1; l >= 1; l-- {
+		if l%2 == 0 || l == 1 {
+			ladder = append(ladder, l)
+		}
+	}
+	return ladder
+}
+
+// quickIter is the Newton budget before the exact feasibility test runs.
+const quickIter = 12
+
 // maxentRows fills trans (one row of len(nodes) per entry of law.Mean) with
 // maximum-entropy transition rows on the given nodes, matching up to L conditional moments in each state and
-// falling back to fewer where the full set is infeasible. matched receives
+// falling back (see fallbackLadder) where the full set is infeasible. matched receives
 // the number of moments matched per state. The multipliers of each state
 // warm-start the next.
 func maxentRows(nodes, logW []float64, law conditional, L int, trans []float64, matched []int) {
@@ -35,6 +52,7 @@ func maxentRows(nodes, logW []float64, law conditional, L int, trans []float64, 
 	z := make([]float64, n)
 	warm := make([]float64, L)
 	warmL := -1
+	ladder := fallbackLadder(L)
 	var dual Dual
 	for i := range law.Mean {
 		m, s := law.Mean[i], law.SD[i]
@@ -48,15 +66,24 @@ func maxentRows(nodes, logW []float64, law conditional, L int, trans []float64, 
 		}
 		row := trans[i*n : (i+1)*n]
 		got := 0
-		for l := L; l >= 1; l-- {
+		for _, l := range ladder {
 			fillDeviations(z, targets[:l], dev[:n*l])
 			var start []float64
 			if warmL == l {
 				start = warm[:l]
 			}
-			lam, ok := dual.Solve(logq, dev[:n*l], l, start, row)
-			if !ok && start != nil {
-				lam, ok = dual.Solve(logq, dev[:n*l], l, nil, row)
+			// Feasible states converge in a few Newton steps; only when a
+			// short budget runs out is the exact hull test worth its cost,
+			// and it spares the long divergent runs of infeasible targets.
+			lam, ok := dual.solve(logq, dev[:n*l], l, start, row, quickIter)
+			if !ok {
+				if feasible, decided := powerMomentsFeasible(z, targets[:l]); decided && !feasible {
+					continue
+				}
+				lam, ok = dual.Solve(logq, dev[:n*l], l, lam, row)
+				if !ok {
+					lam, ok = dual.Solve(logq, dev[:n*l], l, nil, row)
+				}
 			}
 			if ok {
 				copy(warm, lam)

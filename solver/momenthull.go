@@ -1,0 +1,121 @@
+package solver
+
+import "math"
+
+// maxHullFacets bounds the facets the exact feasibility test enumerates;
+// beyond it (fine grids, many moments) infeasibility is left to Newton.
+const maxHullFacets = 5000
+
+// powerMomentsFeasible decides whether standardized power-moment targets
+// t_k = E z^k (k = 1..L) can be matched by a distribution with positive
+// weight on every point of the ascending grid z, i.e. whether (t_1..t_L)
+// lies in the interior of the convex hull of the moment curve points
+// (z_j, z_j², …, z_j^L). That hull is a cyclic polytope, whose facets are
+// the L-subsets S of the grid satisfying Gale's evenness condition (Gale
+// 1963; Ziegler 1995, Theorem 0.7): every maximal run of consecutive
+// members that touches neither end of the grid has even length. The facet
+// through S is the zero set of P_S(z) = Π_{s∈S} (z − z_s), which has one
+// sign on all other grid points, so the target is interior iff
+// E P_S(z) has that sign, strictly, for every facet.
+//
+// decided is false when the grid has too many facets to enumerate cheaply;
+// then feasible is true and the dual solver decides.
+func powerMomentsFeasible(z, targets []float64) (feasible, decided bool) {
+	n, L := len(z), len(targets)
+	if n <= L {
+		return false, true
+	}
+	if binomial(n, (L+1)/2) > maxHullFacets {
+		return true, false
+	}
+	moments := make([]float64, L+1) // E z^0..z^L
+	moments[0] = 1
+	copy(moments[1:], targets)
+	scale := 1.0 // size of the largest grid value, for a relative margin
+	for _, v := range z {
+		scale = math.Max(scale, math.Abs(v))
+	}
+	coef := make([]float64, L+1)
+	members := make([]int, 0, L)
+	inside := true
+	var rec func(i, runStart int)
+	rec = func(i, runStart int) {
+		if !inside {
+			return
+		}
+		if len(members) == L {
+			last := members[L-1]
+			if runStart > 0 && last < n-1 && (last-runStart+1)%2 == 1 {
+				return // an interior run of odd length: not a facet
+			}
+			inside = facetAdmits(z, members, moments, coef, scale)
+			return
+		}
+		if n-i < L-len(members) {
+			return
+		}
+		// i joins S.
+		start := runStart
+		if len(members) == 0 || members[len(members)-1] != i-1 {
+			start = i
+		}
+		members = append(members, i)
+		rec(i+1, start)
+		members = members[:len(members)-1]
+		// i stays out: an open run ending at i−1 must be even unless it
+		// started at the first point.
+		if len(members) > 0 && members[len(members)-1] == i-1 && runStart > 0 && (i-runStart)%2 == 1 {
+			return
+		}
+		rec(i+1, -1)
+	}
+	rec(0, -1)
+	return inside, true
+}
+
+// facetAdmits reports whether the targets lie strictly on the inner side of
+// the facet through the members.
+func facetAdmits(z []float64, members []int, moments, coef []float64, scale float64) bool {
+	// Expand Π (z − z_s) into coefficients coef[0..L].
+	clear(coef)
+	coef[0] = 1
+	deg := 0
+	for _, s := range members {
+		r := z[s]
+		deg++
+		for k := deg; k >= 1; k-- {
+			coef[k] = coef[k-1] - r*coef[k]
+		}
+		coef[0] = -r * coef[0]
+	}
+	var e, size float64
+	for k, c := range coef {
+		e += c * moments[k]
+		size += math.Abs(c) * math.Abs(moments[k])
+	}
+	// Sign of P_S on the other points: evaluate at the first non-member.
+	sign := 0.0
+	for j := range z {
+		if !contains(members, j) {
+			v := 1.0
+			for _, s := range members {
+				v *= z[j] - z[s]
+			}
+			sign = math.Copysign(1, v)
+			break
+		}
+	}
+	_ = scale
+	// A margin of 1e-12 of the terms' size separates the interior from
+	// targets on the boundary up to rounding.
+	return sign*e > 1e-12*size
+}
+
+func contains(s []int, v int) bool {
+	for _, x := range s {
+		if x == v {
+			return true
+		}
+	}
+	return false
+}
