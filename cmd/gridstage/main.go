@@ -6,6 +6,7 @@ package main
 import (
 	"errors"
 	"fmt"
+	"io"
 	"os"
 
 	"github.com/spf13/cobra"
@@ -53,17 +54,21 @@ func newRoot() *cobra.Command {
 var extraCommands []func() *cobra.Command
 
 func main() {
-	os.Exit(execute(os.Args[1:]))
+	os.Exit(execute(os.Args[1:], os.Stdout, os.Stderr))
 }
 
-func execute(args []string) int {
+// execute runs the command line and returns the exit status; tests call it
+// in-process with their own writers.
+func execute(args []string, stdout, stderr io.Writer) int {
 	root := newRoot()
 	root.SetArgs(args)
+	root.SetOut(stdout)
+	root.SetErr(stderr)
 	err := root.Execute()
 	if err == nil {
 		return exitOK
 	}
-	fmt.Fprintln(os.Stderr, "gridstage: "+err.Error())
+	fmt.Fprintln(stderr, "gridstage: "+err.Error())
 	var ue *usageError
 	if errors.As(err, &ue) || isCobraUsage(err) {
 		return exitUsage

@@ -1,0 +1,130 @@
+package main
+
+import (
+	"bytes"
+	"encoding/json"
+	"math"
+	"strings"
+	"testing"
+)
+
+// run executes the command line in-process.
+func run(t *testing.T, args ...string) (code int, stdout, stderr string) {
+	t.Helper()
+	var out, errb bytes.Buffer
+	code = execute(args, &out, &errb)
+	return code, out.String(), errb.String()
+}
+
+func TestDiscretizeAR1JSON(t *testing.T) {
+	code, out, errOut := run(t, "discretize", "ar1", "--rho", "0.9", "--sigma", "0.1", "--states", "7", "--json")
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, errOut)
+	}
+	var got struct {
+		Grid        [][]float64 `json:"grid"`
+		Transition  [][]float64 `json:"transition"`
+		Stationary  []float64   `json:"stationary"`
+		Matched     []int       `json:"matched"`
+		Diagnostics struct {
+			Chain struct {
+				Autocorr float64 `json:"autocorrelation"`
+			} `json:"chain_unconditional"`
+		} `json:"diagnostics"`
+		Baseline *struct {
+			Method string `json:"method"`
+		} `json:"baseline"`
+	}
+	if err := json.Unmarshal([]byte(out), &got); err != nil {
+		t.Fatalf("output is not one JSON object: %v\n%s", err, out)
+	}
+	if len(got.Grid) != 7 || len(got.Grid[0]) != 1 || len(got.Transition) != 7 || len(got.Stationary) != 7 {
+		t.Fatalf("shape: grid %d, transition %d, stationary %d", len(got.Grid), len(got.Transition), len(got.Stationary))
+	}
+	for i, row := range got.Transition {
+		var s float64
+		for _, p := range row {
+			s += p
+		}
+		// JSON carries shortest round-trip decimals, so sums stay within 1e-12.
+		if math.Abs(s-1) > 1e-12 {
+			t.Errorf("row %d sums to %.17g", i, s)
+		}
+	}
+	// Mean matched in every state ⇒ autocorrelation equals ρ (REFERENCES.md, derived).
+	if math.Abs(got.Diagnostics.Chain.Autocorr-0.9) > 1e-11 {
+		t.Errorf("autocorrelation %.15g, want 0.9", got.Diagnostics.Chain.Autocorr)
+	}
+	if got.Baseline == nil || got.Baseline.Method != "tauchen" {
+		t.Errorf("baseline missing or wrong: %+v", got.Baseline)
+	}
+}
+
+func TestDiscretizeTextShowsBaseline(t *testing.T) {
+	code, out, _ := run(t, "discretize", "ar1", "--rho", "0.95", "--sigma", "0.12", "--states", "9", "--compare", "rouwenhorst")
+	if code != 0 {
+		t.Fatalf("exit %d", code)
+	}
+	for _, want := range []string{"transition matrix", "unconditional moments", "rouwenhorst", "autocorrelation"} {
+		if !strings.Contains(out, want) {
+			t.Errorf("text output lacks %q", want)
+		}
+	}
+}
+
+func TestDiscretizeIIDJSON(t *testing.T) {
+	code, out, errOut := run(t, "discretize", "iid", "--dist", "beta", "--alpha", "2", "--beta", "5", "--states", "9", "--json")
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, errOut)
+	}
+	var got struct {
+		Grid    [][]float64 `json:"grid"`
+		Weights []float64   `json:"weights"`
+		Diag    struct {
+			Matched int `json:"matched"`
+		} `json:"diagnostics"`
+	}
+	if err := json.Unmarshal([]byte(out), &got); err != nil {
+		t.Fatal(err)
+	}
+	if len(got.Grid) != 9 || len(got.Weights) != 9 || got.Diag.Matched != 4 {
+		t.Errorf("grid %d, weights %d, matched %d", len(got.Grid), len(got.Weights), got.Diag.Matched)
+	}
+}
+
+// Bad input exits with status 2 and one line naming the flag and the
+// valid range.
+func TestDiscretizeBadInput(t *testing.T) {
+	cases := []struct {
+		args []string
+		want string
+	}{
+		{[]string{"discretize", "ar1", "--rho", "1.2", "--sigma", "0.1"}, "--rho 1.2 is out of range: want in (-1, 1)"},
+		{[]string{"discretize", "ar1", "--rho", "NaN", "--sigma", "0.1"}, "--rho NaN is out of range"},
+		{[]string{"discretize", "ar1", "--rho", "0.5", "--sigma", "0"}, "--sigma 0 is out of range: want finite and > 0"},
+		{[]string{"discretize", "ar1", "--rho", "0.5", "--sigma", "-1"}, "--sigma -1 is out of range"},
+		{[]string{"discretize", "ar1", "--rho", "0.5", "--sigma", "1", "--states", "1"}, "--states 1 is out of range: want an integer from 2 to 10000"},
+		{[]string{"discretize", "ar1", "--rho", "0.5", "--sigma", "1", "--moments", "9"}, "--moments 9 is out of range: want an integer from 1 to 8"},
+		{[]string{"discretize", "ar1", "--rho", "0.5", "--sigma", "1", "--method", "rouwenhorst", "--moments", "4"}, "--moments applies to --method maxent only"},
+		{[]string{"discretize", "ar1", "--rho", "0.5", "--sigma", "1", "--innovation", "t", "--nu", "3", "--moments", "4"}, "--moments 4 is out of range: want an integer from 1 to 2 for this innovation"},
+		{[]string{"discretize", "ar1", "--rho", "0.5", "--sigma", "1", "--method", "nearest"}, `--method "nearest" is not recognised`},
+		{[]string{"discretize", "ar1", "--rho", "0.5", "--sigma", "1", "--bogus"}, "unknown flag: --bogus"},
+		{[]string{"discretize", "ar1", "--sigma", "1"}, "--rho is required"},
+		{[]string{"discretize", "ar2"}, `unknown process kind "ar2"`},
+		{[]string{"discretize", "iid", "--dist", "beta", "--lo", "1", "--hi", "0"}, "--hi 0 is out of range"},
+		{[]string{"discretize", "iid", "--dist", "mixture", "--mix-weights", "0.5,0.4", "--mix-means", "0,1", "--mix-sds", "1,1"}, "--mix-weights sum to 0.9: want 1"},
+	}
+	for _, c := range cases {
+		code, out, errOut := run(t, c.args...)
+		if code != 2 {
+			t.Errorf("%v: exit %d, want 2", c.args, code)
+		}
+		if out != "" {
+			t.Errorf("%v: wrote to stdout on error: %q", c.args, out)
+		}
+		lines := strings.Split(strings.TrimSpace(errOut), "\n")
+		if len(lines) != 1 || !strings.Contains(errOut, c.want) {
+			t.Errorf("%v: stderr %q, want one line containing %q", c.args, errOut, c.want)
+		}
+	}
+}
