@@ -36,6 +36,9 @@ type Settings struct {
 	Width float64
 	// Floden selects the Flodén (2008) base s.d. for Tauchen-Hussey.
 	Floden bool
+	// Axes orients the tensor grid of vector processes (VAR); the zero value
+	// is AxesPrincipal. Univariate processes ignore it.
+	Axes GridAxes
 }
 
 // StationarySD returns σ/√(1−ρ²), the unconditional standard deviation.
