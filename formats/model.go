@@ -1,0 +1,63 @@
+package formats
+
+import (
+	"gridstage/solver"
+)
+
+// Header describes what every record of a Set shares.
+type Header struct {
+	// Run is the run name from the manifest.
+	Run string
+	// Process is the process name; it names the files, so it may hold only
+	// letters, digits, '_', '-' and '.', and may not start with '.'.
+	Process string
+	// Kind is the process kind (ar1, var1, …).
+	Kind string
+	// Method is the discretization method of the primary chains.
+	Method string
+	// Dim is the dimension of each state vector (≥ 1).
+	Dim int
+	// Params lists the swept parameter names. The writer sorts a copy; every
+	// record must give a value for each name and no other.
+	Params []string
+	// ManifestHash identifies the manifest the run came from (may be empty
+	// for chains not made from a manifest).
+	ManifestHash string
+	// Tool is the gridstage version; empty means internal/version.Tool.
+	Tool string
+}
+
+// Record is one chain of a Set: one sweep point at one age.
+type Record struct {
+	// Point is the sweep point index, ≥ 0. Records are appended in strictly
+	// increasing (Point, Age) order.
+	Point int
+	// Params holds the swept parameter values of the point, by name.
+	Params map[string]float64
+	// Age is the age of a life-cycle chain (0 for time-invariant chains):
+	// Chain.Grid is the grid at Age and Chain.Transition maps it to the grid
+	// at Age+1.
+	Age int
+	// SpecHash and Spec are the point's spec hash and canonical spec; they
+	// must be the same for every age of a point.
+	SpecHash string
+	Spec     []byte
+	// Chain is the chain; its Grid has Header.Dim values per state.
+	Chain *solver.Chain
+	// Initial is an optional distribution over this age's states (for
+	// life-cycle chains, the distribution at entry); nil when absent.
+	Initial []float64
+	// Diag compares Chain with the true process. Its Stationary (nil when
+	// not computed) is written with the states.
+	Diag solver.Diagnostics
+	// Baseline optionally compares a baseline method's chain on the same
+	// number of states with the true process.
+	Baseline *solver.Diagnostics
+}
+
+// Set is a whole output in memory: a header and its records in (Point, Age)
+// order. Large sweeps should be streamed with a Writer and a Reader instead.
+type Set struct {
+	Header
+	Records []Record
+}

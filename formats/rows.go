@@ -1,0 +1,151 @@
+package formats
+
+import (
+	"gridstage/solver"
+)
+
+// The functions below append one record's rows to a table, in the column
+// order of schemaFor. Each calls endRow after every row so that a chain
+// with many states is split across batches rather than held whole.
+
+func appendTransitions(t *tableWriter, r *Record) error {
+	point, age, from, to, prob := t.i32(0), t.i32(1), t.i32(2), t.i32(3), t.f64(4)
+	n := r.Chain.States()
+	for i := 0; i < n; i++ {
+		for j, p := range r.Chain.Row(i) {
+			point.Append(int32(r.Point))
+			age.Append(int32(r.Age))
+			from.Append(int32(i))
+			to.Append(int32(j))
+			prob.Append(p)
+			if err := t.endRow(); err != nil {
+				return err
+			}
+		}
+	}
+	return nil
+}
+
+func appendStates(t *tableWriter, r *Record, dim int) error {
+	point, age, state := t.i32(0), t.i32(1), t.i32(2)
+	stat, init, matched := t.f64(3+dim), t.f64(4+dim), t.i32(5+dim)
+	for i := 0; i < r.Chain.States(); i++ {
+		point.Append(int32(r.Point))
+		age.Append(int32(r.Age))
+		state.Append(int32(i))
+		for k, x := range r.Chain.State(i) {
+			t.f64(3 + k).Append(x)
+		}
+		appendNullable(stat, r.Diag.Stationary, i)
+		appendNullable(init, r.Initial, i)
+		matched.Append(int32(r.Chain.Matched[i]))
+		if err := t.endRow(); err != nil {
+			return err
+		}
+	}
+	return nil
+}
+
+func momentValues(m solver.Moments) [4]float64 { return [4]float64{m.Mean, m.Var, m.Skew, m.Kurt} }
+
+func appendDiagnostics(t *tableWriter, r *Record, dim int) error {
+	if err := appendDiagnosticRows(t, r, &r.Diag, false, dim); err != nil {
+		return err
+	}
+	if r.Baseline != nil {
+		return appendDiagnosticRows(t, r, r.Baseline, true, dim)
+	}
+	return nil
+}
+
+func appendDiagnosticRows(t *tableWriter, r *Record, d *solver.Diagnostics, baseline bool, dim int) error {
+	point, age, base, state := t.i32(0), t.i32(1), t.boolean(2), t.i32(3)
+	stat, matched := t.f64(4+dim), t.i32(5+dim)
+	first := 6 + dim
+	for i, s := range d.States {
+		point.Append(int32(r.Point))
+		age.Append(int32(r.Age))
+		base.Append(baseline)
+		state.Append(int32(i))
+		for k, x := range s.Level {
+			t.f64(4 + k).Append(x)
+		}
+		appendNullable(stat, d.Stationary, i)
+		matched.Append(int32(s.Matched))
+		for g, m := range []solver.Moments{s.Chain, s.True, s.AbsErr, s.RelErr} {
+			for k, v := range momentValues(m) {
+				t.f64(first + 4*g + k).Append(v)
+			}
+		}
+		if err := t.endRow(); err != nil {
+			return err
+		}
+	}
+	return nil
+}
+
+func summaryValues(s solver.Summary) [5]float64 {
+	return [5]float64{s.Mean, s.SD, s.Skew, s.Kurt, s.Autocorr}
+}
+
+func appendSummary(t *tableWriter, r *Record) error {
+	if err := appendSummaryRow(t, r, &r.Diag, false); err != nil {
+		return err
+	}
+	if r.Baseline != nil {
+		return appendSummaryRow(t, r, r.Baseline, true)
+	}
+	return nil
+}
+
+func appendSummaryRow(t *tableWriter, r *Record, d *solver.Diagnostics, baseline bool) error {
+	t.i32(0).Append(int32(r.Point))
+	t.i32(1).Append(int32(r.Age))
+	t.boolean(2).Append(baseline)
+	t.str(3).Append(d.Method)
+	t.i32(4).Append(int32(len(d.States)))
+	if baseline {
+		t.i32(5).AppendNull()
+	} else {
+		t.i32(5).Append(int32(r.Chain.Moments))
+	}
+	t.i32(6).Append(int32(d.Fallbacks))
+	col := 7
+	for _, s := range []solver.Summary{d.Chain, d.True} {
+		for _, v := range summaryValues(s) {
+			t.f64(col).Append(v)
+			col++
+		}
+	}
+	for _, v := range momentValues(d.WorstRelErr) {
+		t.f64(col).Append(v)
+		col++
+	}
+	if d.StationaryErr == "" {
+		t.str(col).AppendNull()
+	} else {
+		t.str(col).Append(d.StationaryErr)
+	}
+	return t.endRow()
+}
+
+// pointRow is the points-table row of one finished sweep point.
+type pointRow struct {
+	point, ages int
+	specHash    string
+	chainHash   string
+	spec        []byte
+	params      []float64 // in Header.Params order
+}
+
+func appendPoint(t *tableWriter, p *pointRow) error {
+	t.i32(0).Append(int32(p.point))
+	t.i32(1).Append(int32(p.ages))
+	t.str(2).Append(p.specHash)
+	t.str(3).Append(p.chainHash)
+	t.str(4).Append(string(p.spec))
+	for k, v := range p.params {
+		t.f64(5 + k).Append(v)
+	}
+	return t.endRow()
+}
