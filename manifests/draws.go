@@ -1,0 +1,241 @@
+package manifests
+
+import (
+	"encoding/csv"
+	"errors"
+	"io"
+	"os"
+	"path/filepath"
+	"strconv"
+	"strings"
+
+	"go.yaml.in/yaml/v3"
+)
+
+// maxDrawBytes bounds the size of a draw table.
+const maxDrawBytes = 64 << 20
+
+// drawTable is a table of parameter draws: one sweep point per row, one
+// parameter per column (columns listed under ignore are skipped).
+type drawTable struct {
+	file    string // as written in the manifest
+	columns []string
+	rows    [][]num // parallel to columns
+}
+
+const drawsWant = "a file name (.csv or .parquet) or a mapping {file, ignore}"
+
+// decodeDraws reads the draws entry and the table it names. names are the
+// process's sweepable parameters.
+func (d *decoder) decodeDraws(n *yaml.Node, path string, names []string) *drawTable {
+	n = resolve(n)
+	var file str
+	var ignore []string
+	switch {
+	case n.Kind == yaml.ScalarNode && n.Tag == "!!str":
+		file = str{v: n.Value, at: d.at(n, path), set: true}
+	case n.Kind == yaml.MappingNode:
+		m := d.mapping(n, path, drawsWant)
+		file = m.text("file", "a file name")
+		if !file.set {
+			if !file.bad {
+				m.missing("file", "a file name (.csv or .parquet)")
+			}
+			m.get("ignore")
+			m.finish(nil)
+			return nil
+		}
+		if list, ok := m.list("ignore", "a list of column names"); ok {
+			for i, item := range list.Content {
+				item = resolve(item)
+				if item.Kind != yaml.ScalarNode || item.Tag != "!!str" {
+					d.r.add(d.at(item, joinIndex(m.field("ignore"), i)), ErrType, "the value is %s: want a column name", describe(item))
+					continue
+				}
+				ignore = append(ignore, item.Value)
+			}
+		}
+		m.finish(nil)
+	default:
+		d.r.add(d.at(n, path), ErrType, "the value is %s: want %s", describe(n), drawsWant)
+		return nil
+	}
+	if file.v == "" {
+		d.r.add(file.at, ErrRange, "the file name is empty: want a .csv or .parquet file")
+		return nil
+	}
+	full := file.v
+	if !filepath.IsAbs(full) && d.dir != "" {
+		full = filepath.Join(d.dir, full)
+	}
+	t := &drawTable{file: file.v}
+	var ok bool
+	switch strings.ToLower(filepath.Ext(full)) {
+	case ".csv":
+		ok = d.readCSV(t, full, file.at, path, names, ignore)
+	case ".parquet":
+		ok = d.readParquet(t, full, file.at, path, names, ignore)
+	default:
+		d.r.add(file.at, ErrRange, "%q is neither a .csv nor a .parquet file", file.v)
+		return nil
+	}
+	if !ok {
+		return nil
+	}
+	return t
+}
+
+// openTable opens a draw table, refusing anything but a regular file of
+// reasonable size (a device or pipe could block or never end).
+func (d *decoder) openTable(full string, at loc) (*os.File, bool) {
+	info, err := os.Stat(full)
+	if err != nil {
+		d.r.add(at, ErrFile, "cannot read the draw table: %s", pathErr(err))
+		return nil, false
+	}
+	if !info.Mode().IsRegular() {
+		d.r.add(at, ErrFile, "%s is not a regular file: want a CSV or Parquet table", full)
+		return nil, false
+	}
+	if info.Size() > maxDrawBytes {
+		d.r.add(at, ErrFile, "%s is %d bytes: want at most %d", full, info.Size(), maxDrawBytes)
+		return nil, false
+	}
+	f, err := os.Open(full)
+	if err != nil {
+		d.r.add(at, ErrFile, "cannot read the draw table: %s", pathErr(err))
+		return nil, false
+	}
+	return f, true
+}
+
+// pathErr shortens an *os.PathError to "path: reason".
+func pathErr(err error) string {
+	var pe *os.PathError
+	if errors.As(err, &pe) {
+		return pe.Path + ": " + pe.Err.Error()
+	}
+	return err.Error()
+}
+
+// header checks the column names; it returns, per column, whether the
+// column is used (false: ignored) and whether all names are valid.
+func (d *decoder) header(t *drawTable, cols []string, at func(i int) loc, atFile loc, names, ignore []string) ([]bool, bool) {
+	use := make([]bool, len(cols))
+	ok := true
+	seen := map[string]int{}
+	for i, c := range cols {
+		if j, dup := seen[c]; dup {
+			d.r.add(at(i), ErrDuplicate, "column %q repeats column %d", c, j+1)
+			ok = false
+			continue
+		}
+		seen[c] = i
+		switch {
+		case contains(ignore, c):
+		case contains(names, c):
+			use[i] = true
+			t.columns = append(t.columns, c)
+		default:
+			d.r.add(at(i), ErrUnknown, "column %q is not a parameter of this process: %s (or list it under ignore)", c, hint(c, names))
+			ok = false
+		}
+	}
+	for _, g := range ignore {
+		if _, found := seen[g]; !found {
+			d.r.add(atFile, ErrUnknown, "ignore names column %q, which %s does not have", g, t.file)
+			ok = false
+		}
+	}
+	if ok && len(t.columns) == 0 {
+		d.r.add(atFile, ErrMissing, "%s has no parameter columns: want at least one", t.file)
+		ok = false
+	}
+	return use, ok
+}
+
+// readCSV reads a CSV draw table with a header row. Positions in errors
+// are the table's own lines and columns.
+func (d *decoder) readCSV(t *drawTable, full string, at loc, path string, names, ignore []string) bool {
+	f, ok := d.openTable(full, at)
+	if !ok {
+		return false
+	}
+	defer f.Close()
+	cr := csv.NewReader(io.LimitReader(f, maxDrawBytes))
+	cr.TrimLeadingSpace = true
+	cellAt := func(field int) loc {
+		line, col := cr.FieldPos(field)
+		return loc{pos: Pos{File: full, Line: line, Column: col}}
+	}
+	csvErr := func(err error) {
+		var pe *csv.ParseError
+		if errors.As(err, &pe) {
+			d.r.add(loc{pos: Pos{File: full, Line: pe.Line, Column: pe.Column}, path: path}, ErrSyntax, "%s", pe.Err)
+			return
+		}
+		d.r.add(at, ErrFile, "cannot read the draw table: %s", pathErr(err))
+	}
+	head, err := cr.Read()
+	if err == io.EOF {
+		d.r.add(at, ErrMissing, "%s is empty: want a header row naming parameters, then one row per draw", t.file)
+		return false
+	}
+	if err != nil {
+		csvErr(err)
+		return false
+	}
+	cols := make([]string, len(head))
+	for i, c := range head {
+		cols[i] = strings.TrimSpace(strings.TrimPrefix(c, "\ufeff"))
+	}
+	use, ok := d.header(t, cols, func(i int) loc {
+		l := cellAt(i)
+		l.path = path
+		return l
+	}, at, names, ignore)
+	if !ok {
+		return false
+	}
+	badRows := 0
+	for {
+		rec, err := cr.Read()
+		if err == io.EOF {
+			break
+		}
+		if err != nil {
+			csvErr(err)
+			return false
+		}
+		if len(t.rows) >= maxJobs {
+			d.r.add(at, ErrRange, "%s has more than %d rows: want at most %d draws", t.file, maxJobs, maxJobs)
+			return false
+		}
+		row := make([]num, 0, len(t.columns))
+		good := true
+		for i, cell := range rec {
+			if !use[i] {
+				continue
+			}
+			l := cellAt(i)
+			l.path = joinKey(path, cols[i])
+			text := strings.TrimSpace(cell)
+			v, err := strconv.ParseFloat(text, 64)
+			if err != nil {
+				d.r.add(l, ErrType, "%q is not a number: want a number in column %s", text, cols[i])
+				good = false
+				continue
+			}
+			row = append(row, num{v: v, text: text, at: l, set: true})
+		}
+		if !good {
+			badRows++
+			continue
+		}
+		t.rows = append(t.rows, row)
+	}
+	if len(t.rows) == 0 && badRows == 0 {
+		d.r.add(at, ErrMissing, "%s has a header but no rows: want one row per draw", t.file)
+	}
+	return len(t.rows) > 0 && badRows == 0
+}

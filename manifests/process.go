@@ -1,0 +1,290 @@
+package manifests
+
+import (
+	"fmt"
+	"regexp"
+	"strings"
+
+	"go.yaml.in/yaml/v3"
+
+	"gridstage/solver"
+)
+
+// commonKeys are the keys every process mapping accepts besides its kind's.
+var commonKeys = []string{"name", "kind", "method", "states", "moments", "grid", "width", "floden", "compare", "sweep"}
+
+// defaultStates is the number of grid points when a process gives none.
+const defaultStates = 9
+
+// namePattern keeps run and process names usable in file names on every
+// system: letters, digits, '.', '_' and '-', starting with a letter or digit.
+var namePattern = regexp.MustCompile(`^[A-Za-z0-9][A-Za-z0-9._-]{0,63}$`)
+
+const nameWant = "a name of 1 to 64 letters, digits, '.', '_' or '-', starting with a letter or digit"
+
+// processSpec is one process as written, or as set for one sweep point.
+type processSpec struct {
+	at                     loc // the process mapping
+	name, kind             str
+	method, grid, compare  str
+	states, moments, width num
+	floden                 toggle
+	spec                   kindSpec // nil when the kind is unknown
+	sweep                  *sweepSpec
+
+	// Filled by check.
+	settings solver.Settings
+	baseline *solver.Settings
+}
+
+// decodeProcess reads processes[i]. It returns nil if the entry is not a
+// mapping. needName is false for a canonical spec, which has no name.
+func (d *decoder) decodeProcess(n *yaml.Node, path string, needName bool) *processSpec {
+	m := d.mapping(n, path, "a mapping describing a process")
+	if m == nil {
+		return nil
+	}
+	p := &processSpec{at: d.at(m.node, path)}
+	if needName {
+		p.name = m.text("name", nameWant)
+		if !p.name.set && !m.has("name") {
+			m.missing("name", nameWant)
+		} else if p.name.set && !namePattern.MatchString(p.name.v) {
+			d.r.add(p.name.at, ErrRange, "%q is not a valid name: want %s", p.name.v, nameWant)
+		}
+	}
+	p.kind = m.choice("kind", kindNames())
+	if !m.has("kind") {
+		m.missing("kind", "one of "+strings.Join(kindNames(), ", "))
+	}
+	p.method = m.choice("method", solver.MethodNames())
+	p.states = m.number("states")
+	p.moments = m.number("moments")
+	p.grid = m.choice("grid", solver.GridRuleNames())
+	p.width = m.number("width")
+	p.floden = m.boolean("floden")
+	p.compare = m.choice("compare", append(solver.MethodNames(), "none"))
+	if !p.kind.set {
+		// Without a kind the other keys cannot be judged; mark them known
+		// so that only the kind is reported.
+		for _, k := range kinds {
+			for _, key := range k.keys {
+				m.get(key)
+			}
+		}
+		m.get("sweep")
+		if !needName {
+			m.get("name")
+		}
+		m.finish(nil)
+		return p
+	}
+	info, _ := lookupKind(p.kind.v)
+	p.spec = info.new()
+	p.spec.decode(m)
+	if sn := m.get("sweep"); sn != nil {
+		if !needName {
+			d.r.add(d.at(sn, m.field("sweep")), ErrUnknown, "a canonical spec has no sweep")
+		} else {
+			p.sweep = d.decodeSweep(sn, m.field("sweep"), p)
+		}
+	}
+	m.finish(func(k string) string {
+		for _, o := range kinds {
+			if o.name != p.kind.v && contains(o.keys, k) {
+				return fmt.Sprintf("%s belongs to kind %s, not %s", k, o.name, p.kind.v)
+			}
+		}
+		return ""
+	})
+	return p
+}
+
+// clone returns a deep copy for one sweep point.
+func (p *processSpec) clone() *processSpec {
+	c := *p
+	if p.spec != nil {
+		c.spec = p.spec.clone()
+	}
+	c.baseline = nil
+	return &c
+}
+
+// params returns the numeric parameters a sweep may set, in a stable order,
+// and a pointer to each.
+func (p *processSpec) params() ([]string, map[string]*num) {
+	var names []string
+	refs := map[string]*num{}
+	add := func(name string, n *num) {
+		names = append(names, name)
+		refs[name] = n
+	}
+	if p.spec != nil {
+		p.spec.params(add)
+	}
+	add("states", &p.states)
+	add("moments", &p.moments)
+	add("width", &p.width)
+	return names, refs
+}
+
+// check validates the process for one point, fills in every default and
+// sets settings and baseline. It reports false on any error.
+func (p *processSpec) check(r *reporter) bool {
+	if p.spec == nil {
+		return false
+	}
+	ok := p.spec.check(r, p.at)
+	if p.method.bad || p.grid.bad || p.compare.bad {
+		// Already reported; rules that depend on them would only add noise.
+		return false
+	}
+
+	methods := p.spec.methods()
+	method := methods[0]
+	if p.method.set {
+		m, _ := solver.ParseMethod(p.method.v)
+		if !containsMethod(methods, m) {
+			r.add(p.method.at, ErrRule, "%s does not apply to kind %s: want %s", m, p.kind.v, methodList(methods))
+			return false
+		}
+		method = m
+	}
+	maxent := method == solver.MaxEnt
+
+	if p.states.set {
+		ok = checkInt(r, p.states, 2, 10000) && ok
+	} else {
+		p.states.v = defaultStates
+	}
+
+	if p.moments.set {
+		switch {
+		case !maxent:
+			r.add(p.moments.at, ErrRule, "applies to method maxent only: %s matches a fixed set of moments", method)
+			ok = false
+		case !checkInt(r, p.moments, 1, 8):
+			ok = false
+		case ok:
+			if limit, why := p.spec.momentLimit(); int(p.moments.v) > limit {
+				r.add(p.moments.at, ErrRule, "%s is out of range: want an integer from 1 to %d, since %s", p.moments, limit, why)
+				ok = false
+			}
+		}
+	} else if maxent && ok {
+		limit, _ := p.spec.momentLimit()
+		p.moments.v = float64(min(4, limit))
+	}
+
+	grid := solver.GridEven
+	if p.grid.set {
+		if !maxent {
+			r.add(p.grid.at, ErrRule, "applies to method maxent only: %s places its own grid", method)
+			ok = false
+		}
+		grid, _ = solver.ParseGridRule(p.grid.v)
+	}
+
+	widthApplies := method == solver.Tauchen || (maxent && (grid == solver.GridEven || grid == solver.GridGaussLegendre))
+	if p.width.set {
+		switch {
+		case !checkPositive(r, p.width):
+			ok = false
+		case !maxent && !widthApplies:
+			r.add(p.width.at, ErrRule, "does not apply to method %s: it sets its own grid", method)
+			ok = false
+		case !widthApplies:
+			r.add(p.width.at, ErrRule, "applies to even and gauss-legendre grids only: the %s grid has no width", grid)
+			ok = false
+		}
+	} else if ok {
+		switch {
+		case method == solver.Tauchen:
+			p.width.v = solver.DefaultTauchenWidth
+		case widthApplies:
+			p.width.v = solver.DefaultWidth(int(p.states.v))
+		}
+	}
+
+	if p.floden.set && p.floden.v && method != solver.TauchenHussey {
+		r.add(p.floden.at, ErrRule, "applies to method tauchen-hussey only")
+		ok = false
+	}
+
+	var base solver.Method
+	hasBase := false
+	switch {
+	case p.compare.set && p.compare.v == "none":
+	case p.compare.set:
+		base, _ = solver.ParseMethod(p.compare.v)
+		if !containsMethod(p.spec.baselines(), base) {
+			want := "none"
+			if bl := p.spec.baselines(); len(bl) > 0 {
+				want = methodList(bl) + " or none"
+			}
+			r.add(p.compare.at, ErrRule, "%s is not a baseline for kind %s: want %s", base, p.kind.v, want)
+			ok = false
+		}
+		hasBase = true
+	default:
+		base, hasBase = p.spec.defaultBaseline(method)
+	}
+
+	ok = ok && p.spec.rules(r, p)
+	if !ok {
+		return false
+	}
+	p.settings = solver.Settings{
+		States: int(p.states.v), Method: method, Grid: grid,
+		Width: p.width.v, Floden: p.floden.v && method == solver.TauchenHussey,
+	}
+	if maxent {
+		p.settings.Moments = int(p.moments.v)
+	}
+	if hasBase {
+		p.baseline = &solver.Settings{States: int(p.states.v), Method: base}
+	}
+	return true
+}
+
+func containsMethod(list []solver.Method, m solver.Method) bool {
+	for _, x := range list {
+		if x == m {
+			return true
+		}
+	}
+	return false
+}
+
+func methodList(list []solver.Method) string {
+	names := make([]string, len(list))
+	for i, m := range list {
+		names[i] = m.String()
+	}
+	return strings.Join(names, ", ")
+}
+
+// canonicalSpec returns the job's canonical spec object: the fields that
+// affect numbers, with every default filled in. Valid after check.
+func (p *processSpec) canonicalSpec() object {
+	s := p.settings
+	o := object{"kind": p.kind.v, "method": s.Method.String(), "states": s.States}
+	switch s.Method {
+	case solver.MaxEnt:
+		o["moments"] = s.Moments
+		o["grid"] = s.Grid.String()
+		if s.Grid == solver.GridEven || s.Grid == solver.GridGaussLegendre {
+			o["width"] = s.Width
+		}
+	case solver.Tauchen:
+		o["width"] = s.Width
+	case solver.TauchenHussey:
+		o["floden"] = s.Floden
+	}
+	o["compare"] = "none"
+	if p.baseline != nil {
+		o["compare"] = p.baseline.Method.String()
+	}
+	p.spec.canonical(o)
+	return o
+}
