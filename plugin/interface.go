@@ -84,14 +84,14 @@ type Discretization struct {
 // ChainRef identifies one chain (one sweep point of one process) in a
 // written output set.
 type ChainRef struct {
-	Path         string // the set's points file
-	Process      string
-	Point        int
-	ChainHash    string // hash of the chain's numbers
-	SpecHash     string
-	ManifestHash string // empty for a lone job spec
-	FileHash     string // content hash of the file at Path
-	Params       map[string]float64
+	Path         string             `json:"path"` // the set's points file
+	Process      string             `json:"process"`
+	Point        int                `json:"point"`
+	ChainHash    string             `json:"chain_hash"` // hash of the chain's numbers
+	SpecHash     string             `json:"spec_hash"`
+	ManifestHash string             `json:"manifest_hash,omitempty"` // empty for a lone job spec
+	FileHash     string             `json:"file_hash"`               // content hash of the file at Path
+	Params       map[string]float64 `json:"params,omitempty"`
 }
 
 // ChainData holds a time-invariant chain's numbers.
