@@ -36,7 +36,9 @@ func TestEstimateModels(t *testing.T) {
 	tfp := ar1Chain(t, solver.AR1{Rho: 0.9, Sigma: 0.05}, solver.Settings{States: 5})
 	st := &Stage{Loader: memLoader{"div": div, "tfp": tfp}}
 	ctx := context.Background()
-	ref := func(h string) []plugin.ChainInput { return []plugin.ChainInput{{Ref: plugin.ChainRef{ChainHash: h, Process: h}}} }
+	ref := func(h string) []plugin.ChainInput {
+		return []plugin.ChainInput{{Ref: plugin.ChainRef{ChainHash: h, Process: h}}}
+	}
 
 	es, err := st.Estimate(ctx, plugin.EstimateRequest{Model: "burnside", Params: map[string]float64{"beta": 0.95, "theta": -1.5}, Chains: ref("div")})
 	if err != nil {
