@@ -1,0 +1,5 @@
+//go:build !unix
+
+package cache
+
+func isUnsupported(error) bool { return true }
