@@ -116,8 +116,7 @@ func flowFigure(c Case, f Flow) Figure {
 			p.Draw(main)
 
 			bar := newPlot("", "transition probability")
-			cm := &colorMap{pal: iridescent, max: flowGrid{f}.Max()}
-			bar.Add(&plotter.ColorBar{ColorMap: cm, Vertical: true})
+			bar.Add(&colourBar{pal: iridescent, max: flowGrid{f}.Max()})
 			bar.HideX()
 			bar.Y.Padding = 0
 			side := draw.Crop(body, body.Max.X-body.Min.X-barWidth+8, 0, 0, 0)
@@ -129,23 +128,24 @@ func flowFigure(c Case, f Flow) Figure {
 	}
 }
 
-// colorMap maps [0, max] linearly onto a fixed palette for the colour bar,
-// with the same binning the heat map uses.
-type colorMap struct {
+// colourBar draws the heat map's palette as a stack of rectangles, one per
+// colour, each spanning the values the heat map paints in that colour.
+// (Vector rectangles, unlike an embedded image, keep their shape in every
+// SVG viewer.)
+type colourBar struct {
 	pal fixedPalette
 	max float64
 }
 
-func (m *colorMap) At(v float64) (color.Color, error) {
-	// The same rounding as plotter.HeatMap, so bar and map agree.
-	k := int(v/m.max*float64(len(m.pal)-1) + 0.5)
-	k = max(0, min(len(m.pal)-1, k))
-	return m.pal[k], nil
+func (b *colourBar) Plot(c draw.Canvas, p *plot.Plot) {
+	tx, ty := p.Transforms(&c)
+	k := float64(len(b.pal) - 1)
+	for i, col := range b.pal {
+		// plotter.HeatMap paints value v with colour round(v/max·k).
+		lo := math.Max(0, (float64(i)-0.5)/k*b.max)
+		hi := math.Min(b.max, (float64(i)+0.5)/k*b.max)
+		c.FillPolygon(col, []vg.Point{{X: tx(0), Y: ty(lo)}, {X: tx(1), Y: ty(lo)}, {X: tx(1), Y: ty(hi)}, {X: tx(0), Y: ty(hi)}})
+	}
 }
-func (m *colorMap) SetMax(v float64)            { m.max = v }
-func (m *colorMap) SetMin(float64)              {}
-func (m *colorMap) Max() float64                { return m.max }
-func (m *colorMap) Min() float64                { return 0 }
-func (m *colorMap) SetAlpha(float64)            {}
-func (m *colorMap) Alpha() float64              { return 1 }
-func (m *colorMap) Palette(int) palette.Palette { return m.pal }
+
+func (b *colourBar) DataRange() (xmin, xmax, ymin, ymax float64) { return 0, 1, 0, b.max }

@@ -121,7 +121,9 @@ func drawKey(c draw.Canvas, keys []key) draw.Canvas {
 	left := c.Min.X + 8
 	x, y := left, c.Max.Y-row/2
 	for _, k := range keys {
-		w := swatch + gap + ts.Width(k.name)
+		// 15% slack: a viewer without Liberation Sans may substitute a
+		// wider face (DejaVu Sans) for the SVG text.
+		w := swatch + gap + ts.Width(k.name)*1.15
 		if x > left && x+w > c.Max.X {
 			x, y = left, y-row
 		}

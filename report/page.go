@@ -1,0 +1,270 @@
+package report
+
+import (
+	"bytes"
+	"encoding/base64"
+	"fmt"
+	"html/template"
+	"io"
+	"math"
+	"sort"
+
+	"gridstage/figures"
+	"gridstage/internal/version"
+)
+
+// Options tune a report. The zero value is ready to use.
+type Options struct {
+	// MaxFigureChains caps how many chains get figures; 0 means 12. Chains
+	// judged worst come first, so no troubled chain is hidden by a cap
+	// unless more than this many are troubled; every chain still gets a
+	// row in its job's table.
+	MaxFigureChains int
+}
+
+const defaultMaxFigureChains = 12
+
+// Write renders the run as one self-contained HTML page. The run is read
+// and never modified; the output is the same bytes for the same run.
+func Write(w io.Writer, r Run, opt Options) error {
+	p, err := buildPage(r, opt)
+	if err != nil {
+		return err
+	}
+	var buf bytes.Buffer
+	if err := pageTemplate.Execute(&buf, p); err != nil {
+		return fmt.Errorf("report: %w", err)
+	}
+	_, err = w.Write(buf.Bytes())
+	return err
+}
+
+// page is what the template shows.
+type page struct {
+	Run        Run
+	Generator  string
+	Counts     [3]int
+	Glance     []glanceItem
+	FailedChks []Check
+	Jobs       []jobView
+	Omitted    int
+	Thresholds []string
+}
+
+type glanceItem struct {
+	Level  Level
+	Label  string
+	Anchor string
+}
+
+type jobView struct {
+	Job    Job
+	Rows   []rowView
+	Charts []chainView
+}
+
+type rowView struct {
+	Verdict       Verdict
+	Point         string
+	Anchor        string
+	States        int
+	Matched       string
+	Fallbacks     int
+	Worst         [4]string
+	Mean, SD, AC  [2]string
+	Skew, Kurt    [2]string
+	SpecHash      string
+	HasFigures    bool
+	HasDiagnostic bool
+}
+
+type chainView struct {
+	Anchor  string
+	Title   string
+	Verdict Verdict
+	Figures []figureView
+}
+
+type figureView struct {
+	Title, Caption string
+	URI            template.URL
+}
+
+func buildPage(r Run, opt Options) (page, error) {
+	maxCharts := opt.MaxFigureChains
+	if maxCharts <= 0 {
+		maxCharts = defaultMaxFigureChains
+	}
+	p := page{Run: r, Generator: version.Tool, Thresholds: thresholdText()}
+	for _, c := range r.Checks {
+		if !c.OK {
+			p.FailedChks = append(p.FailedChks, c)
+		}
+	}
+	// Grade every chain, then choose which get figures: worst first, then
+	// in reading order.
+	type ref struct{ job, point, chain int }
+	var all []ref
+	verdicts := map[ref]Verdict{}
+	for ji, j := range r.Jobs {
+		for pi, pt := range j.Points {
+			for ci, c := range pt.Chains {
+				k := ref{ji, pi, ci}
+				all = append(all, k)
+				verdicts[k] = Assess(c.Case)
+			}
+		}
+	}
+	ranked := append([]ref(nil), all...)
+	sort.SliceStable(ranked, func(a, b int) bool { return verdicts[ranked[a]].Level > verdicts[ranked[b]].Level })
+	chosen := map[ref]bool{}
+	for _, k := range ranked {
+		if len(chosen) == maxCharts {
+			break
+		}
+		chosen[k] = true
+	}
+	p.Omitted = len(all) - len(chosen)
+
+	for ji, j := range r.Jobs {
+		jv := jobView{Job: j}
+		for pi, pt := range j.Points {
+			pointCharted := false
+			for ci, c := range pt.Chains {
+				k := ref{ji, pi, ci}
+				v := verdicts[k]
+				p.Counts[v.Level]++
+				anchor := fmt.Sprintf("c-%d-%d-%d", ji, pt.Index, c.Age)
+				title := chainTitle(j, pt, c)
+				p.Glance = append(p.Glance, glanceItem{Level: v.Level, Label: title, Anchor: anchor})
+				jv.Rows = append(jv.Rows, summaryRow(pt, c, v, anchor, chosen[k]))
+				if !chosen[k] {
+					continue
+				}
+				cv := chainView{Anchor: anchor, Title: title, Verdict: v}
+				c.Label = title
+				if pt.LifeCycle() && !pointCharted {
+					f, err := figures.ForLifeCycle(pt.lifeCycle(j.Process+", "+pt.Describe(), c.Units))
+					if err == nil {
+						fv, err := embed(f)
+						if err != nil {
+							return page{}, err
+						}
+						cv.Figures = append(cv.Figures, fv)
+					}
+					pointCharted = true
+				}
+				figs, err := figures.For(c.Case)
+				if err != nil {
+					cv.Verdict.Reasons = append(cv.Verdict.Reasons, "Figures unavailable: "+err.Error())
+				}
+				for _, f := range figs {
+					fv, err := embed(f)
+					if err != nil {
+						return page{}, err
+					}
+					cv.Figures = append(cv.Figures, fv)
+				}
+				jv.Charts = append(jv.Charts, cv)
+			}
+		}
+		p.Jobs = append(p.Jobs, jv)
+	}
+	return p, nil
+}
+
+func chainTitle(j Job, pt Point, c Chain) string {
+	s := j.Process + " · " + pt.Describe()
+	if pt.LifeCycle() {
+		s += fmt.Sprintf(" · age %d", c.Age)
+	}
+	return s
+}
+
+// embed encodes a figure as an SVG data URI: vector graphics that print
+// sharply and cannot fetch anything.
+func embed(f figures.Figure) (figureView, error) {
+	var buf bytes.Buffer
+	if err := f.Encode(&buf, figures.SVG); err != nil {
+		return figureView{}, fmt.Errorf("report: drawing %s: %w", f.Name, err)
+	}
+	uri := "data:image/svg+xml;base64," + base64.StdEncoding.EncodeToString(buf.Bytes())
+	return figureView{Title: f.Title, Caption: f.Caption, URI: template.URL(uri)}, nil
+}
+
+func summaryRow(pt Point, c Chain, v Verdict, anchor string, charted bool) rowView {
+	row := rowView{Verdict: v, Point: pt.Describe(), Anchor: anchor, States: c.Chain.States(),
+		Fallbacks: c.Chain.Fallbacks(), SpecHash: short(pt.SpecHash), HasFigures: charted}
+	if pt.LifeCycle() {
+		row.Point = fmt.Sprintf("%s, age %d", pt.Describe(), c.Age)
+	}
+	least := c.Chain.Moments
+	for _, m := range c.Chain.Matched {
+		least = min(least, m)
+	}
+	switch {
+	case c.Chain.Moments == 0:
+		row.Matched = "none targeted"
+	case least == c.Chain.Moments:
+		row.Matched = fmt.Sprintf("%d of %d", c.Chain.Moments, c.Chain.Moments)
+	default:
+		row.Matched = fmt.Sprintf("%d–%d of %d", least, c.Chain.Moments, c.Chain.Moments)
+	}
+	if d := c.Diag; d != nil {
+		row.HasDiagnostic = true
+		row.Worst = [4]string{sci(d.WorstRelErr.Mean), sci(d.WorstRelErr.Var), sci(d.WorstRelErr.Skew), sci(d.WorstRelErr.Kurt)}
+		// Means are shown to the scale of the process: a rounding residue
+		// of 1e-17 around a true mean of 0 is 0.
+		scale := math.Max(math.Abs(d.True.SD), math.Abs(d.True.Mean))
+		row.Mean = [2]string{num(zeroBelow(d.Chain.Mean, 1e-12*scale)), num(d.True.Mean)}
+		row.Skew = [2]string{num(zeroBelow(d.Chain.Skew, 1e-12)), num(d.True.Skew)}
+		row.SD = [2]string{num(d.Chain.SD), num(d.True.SD)}
+		row.AC = [2]string{num(d.Chain.Autocorr), num(d.True.Autocorr)}
+		row.Kurt = [2]string{num(d.Chain.Kurt), num(d.True.Kurt)}
+	}
+	return row
+}
+
+func thresholdText() []string {
+	return []string{
+		fmt.Sprintf("Sound: every state matches every requested conditional moment (error below %.0e in standardized units), the long-run standard deviation is within %.0f%% of the process's and the first-order autocorrelation within %.2f.", figures.MatchTolerance, 100*sdCaution, autocorrCaution),
+		fmt.Sprintf("Use with care: some states fell back to fewer moments, or the long-run standard deviation is off by %.0f–%.0f%%, or the autocorrelation by %.2f–%.2f.", 100*sdCaution, 100*sdUnfit, autocorrCaution, autocorrUnfit),
+		fmt.Sprintf("Do not use: the matrix is not a valid transition matrix, has no unique stationary distribution, claims moments it does not match, or misses the long-run standard deviation by more than %.0f%% or the autocorrelation by more than %.2f.", 100*sdUnfit, autocorrUnfit),
+	}
+}
+
+func short(h string) string {
+	if len(h) > 12 {
+		return h[:12]
+	}
+	return h
+}
+
+// sci formats an error: two digits from 0.001 up, one-digit scientific
+// notation below.
+func sci(v float64) string {
+	switch {
+	case math.IsNaN(v):
+		return "n/a"
+	case v == 0:
+		return "0"
+	case math.Abs(v) >= 1e-3:
+		return fmt.Sprintf("%.2g", v)
+	}
+	return fmt.Sprintf("%.0e", v)
+}
+
+// zeroBelow maps values smaller than tol in magnitude to zero.
+func zeroBelow(v, tol float64) float64 {
+	if math.Abs(v) < tol {
+		return 0
+	}
+	return v
+}
+
+func num(v float64) string {
+	if math.IsNaN(v) {
+		return "n/a"
+	}
+	return fmt.Sprintf("%.4g", v)
+}

@@ -1,0 +1,122 @@
+package report
+
+import (
+	"fmt"
+	"sort"
+	"strings"
+
+	"gridstage/figures"
+)
+
+// Run is one gridstage output as the report shows it.
+type Run struct {
+	// Name is the run name from the manifest.
+	Name string
+	// Source is the path the run was read from.
+	Source string
+	// Tool is the gridstage version that wrote the output.
+	Tool string
+	// ManifestHash identifies the manifest; empty for chains not made from
+	// a manifest.
+	ManifestHash string
+	// Jobs holds one entry per process.
+	Jobs []Job
+	// Checks are file-level checks (content hashes, completeness) made
+	// while reading.
+	Checks []Check
+}
+
+// Job is one process across the points of a sweep.
+type Job struct {
+	Process, Kind, Method string
+	// Dim is the dimension of each state vector.
+	Dim int
+	// Params names the swept parameters, sorted.
+	Params []string
+	// Files lists the job's files with their content hashes.
+	Files []File
+	// Points holds the sweep points in index order.
+	Points []Point
+}
+
+// File is one output file and its provenance.
+type File struct {
+	Name, Table, ContentHash string
+}
+
+// Point is one sweep point of a job.
+type Point struct {
+	// Index is the point's index in the sweep.
+	Index int
+	// Params holds the swept parameter values.
+	Params map[string]float64
+	// SpecHash identifies the canonical job spec; ChainHash the chain's
+	// numbers (all ages).
+	SpecHash, ChainHash string
+	// Chains holds one chain per age, in age order; time-invariant
+	// processes have one, at age 0.
+	Chains []Chain
+}
+
+// Chain is one chain with what its figures need.
+type Chain struct {
+	figures.Case
+	// Age is the age of a life-cycle chain, 0 otherwise.
+	Age int
+	// Initial is the distribution at entry for life-cycle chains, or nil.
+	Initial []float64
+}
+
+// Check is the outcome of one check on the files.
+type Check struct {
+	// Subject names what was checked, e.g. a file name.
+	Subject string
+	// OK reports success; Detail says what failed, in one sentence.
+	OK     bool
+	Detail string
+}
+
+// Describe names a point by its index and parameter values, e.g.
+// "point 3 (rho=0.9, sigma=0.1)".
+func (p Point) Describe() string {
+	if len(p.Params) == 0 {
+		return fmt.Sprintf("point %d", p.Index)
+	}
+	names := make([]string, 0, len(p.Params))
+	for k := range p.Params {
+		names = append(names, k)
+	}
+	sort.Strings(names)
+	parts := make([]string, len(names))
+	for i, k := range names {
+		parts[i] = fmt.Sprintf("%s=%g", k, p.Params[k])
+	}
+	return fmt.Sprintf("point %d (%s)", p.Index, strings.Join(parts, ", "))
+}
+
+// LifeCycle reports whether the point has one chain per age.
+func (p Point) LifeCycle() bool { return len(p.Chains) > 1 }
+
+// lifeCycle assembles the point's chains for the life-cycle figure.
+func (p Point) lifeCycle(label, units string) figures.LifeCycle {
+	l := figures.LifeCycle{Label: label, Units: units}
+	for i, c := range p.Chains {
+		l.Ages = append(l.Ages, float64(c.Age))
+		l.Chains = append(l.Chains, c.Chain)
+		if i == 0 {
+			l.Initial = c.Initial
+		}
+	}
+	return l
+}
+
+// Chains counts every chain of the run.
+func (r Run) Chains() int {
+	var n int
+	for _, j := range r.Jobs {
+		for _, p := range j.Points {
+			n += len(p.Chains)
+		}
+	}
+	return n
+}
