@@ -215,7 +215,7 @@ func (p *Process) Explain(call string, err error) error {
 			e.Msg = fmt.Sprintf("lost its connection during %s: %s", call, err)
 		}
 	default:
-		e.Msg = fmt.Sprintf("failed %s: %s", call, err)
+		e.Msg = fmt.Sprintf("failed in %s: %s", call, err)
 	}
 	return e
 }
