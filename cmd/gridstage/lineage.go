@@ -18,7 +18,7 @@ func init() { extraCommands = append(extraCommands, newLineageCmd) }
 
 func newLineageCmd() *cobra.Command {
 	var (
-		estimate, chain string
+		estimate, chain  string
 		noVerify, asJSON bool
 	)
 	cmd := &cobra.Command{
