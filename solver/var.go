@@ -231,7 +231,7 @@ func (p VAR) maxent(s Settings, L int) *Chain {
 	}
 	c := &Chain{Dim: d, Grid: grid, Method: MaxEnt, Moments: L,
 		Transition: make([]float64, n*n), Matched: make([]int, n)}
-	law := gaussianVectorLaw{d: d, means: means, chol: choleskyLower(p.Cov, d), sd: diagSqrt(p.Cov, d)}
+	law := gaussianVectorLaw{d: d, axisStates: s.States, means: means, chol: choleskyLower(p.Cov, d), sd: diagSqrt(p.Cov, d)}
 	maxentVectorRows(grid, logWeights, law, L, c.Transition, c.Matched)
 	return c
 }

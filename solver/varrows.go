@@ -2,12 +2,16 @@ package solver
 
 // gaussianVectorLaw is the conditional law of a Gaussian vector process:
 // in from-state i, x' ~ N(means[i*d:(i+1)*d], Ψ) with Ψ = chol cholᵀ and
-// marginal standard deviations sd.
+// marginal standard deviations sd. When the from-states form a tensor
+// grid with axisStates points per axis (row-major), the rows are solved in
+// snake order so that each warm start comes from a neighbouring state;
+// axisStates 0 means the from-states are solved in index order.
 type gaussianVectorLaw struct {
-	d     int
-	means []float64 // n×d
-	chol  []float64 // d×d lower triangular
-	sd    []float64 // √Ψ_kk
+	d          int
+	axisStates int
+	means      []float64 // n×d
+	chol       []float64 // d×d lower triangular
+	sd         []float64 // √Ψ_kk
 }
 
 // vectorMomentCount is the number of moment functions at ladder level l
@@ -65,7 +69,8 @@ func maxentVectorRows(grid, logW []float64, law gaussianVectorLaw, L int, trans 
 	warmL := -1
 	ladder := vectorLadder(L)
 	var dual Dual
-	for i := 0; i < len(law.means)/d; i++ {
+	order := snakeOrder(len(law.means)/d, law.axisStates, d)
+	for _, i := range order {
 		m := law.means[i*d : (i+1)*d]
 		for j := 0; j < n; j++ {
 			x := grid[j*d : (j+1)*d]
@@ -139,4 +144,42 @@ func maxentVectorRows(grid, logW []float64, law gaussianVectorLaw, L int, trans 
 		}
 		matched[i] = got
 	}
+}
+
+// snakeOrder returns the from-states 0 … n−1 in boustrophedon order over a
+// tensor grid with N points per axis (d axes, row-major): consecutive
+// states differ by one step along one axis, since the digit of axis k runs
+// backwards whenever the digits of the axes before it sum to an odd number.
+// With N = 0 or n ≠ N^d it returns index order.
+func snakeOrder(n, N, d int) []int {
+	order := make([]int, n)
+	total := 1
+	for k := 0; k < d && N > 0; k++ {
+		total *= N
+	}
+	if N == 0 || total != n {
+		for i := range order {
+			order[i] = i
+		}
+		return order
+	}
+	digits := make([]int, d)
+	for s := range order {
+		rem := s
+		for k := d - 1; k >= 0; k-- {
+			digits[k] = rem % N
+			rem /= N
+		}
+		idx, parity := 0, 0
+		for k := 0; k < d; k++ {
+			dk := digits[k]
+			if parity%2 == 1 {
+				dk = N - 1 - dk
+			}
+			parity += digits[k]
+			idx = idx*N + dk
+		}
+		order[s] = idx
+	}
+	return order
 }
