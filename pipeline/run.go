@@ -73,7 +73,7 @@ func Run(ctx context.Context, s *Spec, opt Options) (*Result, error) {
 	}
 	manifest, err := os.ReadFile(s.Manifest)
 	if err != nil {
-		return nil, fmt.Errorf("%w: %s: manifest: %v", plugin.ErrBadRequest, s.File, err)
+		return nil, plugin.BadRequest("%s: manifest: cannot read %s", s.File, strings.TrimPrefix(err.Error(), "open "))
 	}
 	if err := h.discretize(ctx, manifest); err != nil {
 		return h.res, err
@@ -146,6 +146,9 @@ func (h *host) discretize(ctx context.Context, manifest []byte) error {
 	disc, err := stage.Discretize(cctx, plugin.DiscretizeRequest{
 		Manifest: manifest, SourceName: h.spec.Manifest, OutDir: filepath.Join(h.spec.Out, "chains"),
 	})
+	if errors.Is(err, plugin.ErrBadRequest) {
+		return err // the manifest's own errors, with file:line:column
+	}
 	if err != nil {
 		return p.Explain("Discretize", err)
 	}
@@ -182,7 +185,7 @@ func (h *host) stage(ctx context.Context, st *StageSpec) error {
 	for i, es := range st.Estimates {
 		field := fmt.Sprintf("%s:%d: stages %s estimates[%d]", h.spec.File, es.Line, st.Name, i)
 		if len(d.Models) > 0 && !slices.Contains(d.Models, es.Model) {
-			return fmt.Errorf("%w: %s: stage %s (%s) does not solve model %q (it solves %s)", plugin.ErrBadRequest, field, st.Name, d.Name, es.Model, strings.Join(d.Models, ", "))
+			return plugin.BadRequest("%s: stage %s (%s) does not solve model %q (it solves %s)", field, st.Name, d.Name, es.Model, strings.Join(d.Models, ", "))
 		}
 		refs, err := h.chainsFor(es, field)
 		if err != nil {
@@ -251,7 +254,7 @@ func (h *host) chainsFor(es EstimateSpec, field string) ([]plugin.ChainRef, erro
 					have = append(have, ref.Process)
 				}
 			}
-			return nil, fmt.Errorf("%w: %s: process %q is not in the manifest (it has %s)", plugin.ErrBadRequest, field, name, strings.Join(have, ", "))
+			return nil, plugin.BadRequest("%s: process %q is not in the manifest (it has %s)", field, name, strings.Join(have, ", "))
 		}
 	}
 	return out, nil
