@@ -1,0 +1,201 @@
+package batch
+
+import (
+	"context"
+	"errors"
+	"fmt"
+	"log/slog"
+	"os"
+	"path/filepath"
+	"sync/atomic"
+
+	"gridstage/cache"
+	"gridstage/formats"
+	"gridstage/internal/version"
+	"gridstage/manifests"
+	"gridstage/runner"
+	"gridstage/shard"
+)
+
+// Options choose how a manifest is run. The zero value runs every job on
+// every core, without a cache, into the manifest's output folder and
+// format.
+type Options struct {
+	// Out overrides the manifest's output folder when non-empty.
+	Out string
+	// Format overrides the manifest's output format when non-nil.
+	Format *formats.Format
+	// Workers is the number of jobs solved at once; 0 means every core.
+	Workers int
+	// Cache, when non-nil, supplies solved jobs by spec hash and keeps new ones.
+	Cache *cache.Cache
+	// Shard selects this process's share of the jobs; the zero value is all.
+	Shard shard.Shard
+	// Logger receives progress and warnings; nil discards them.
+	Logger *slog.Logger
+	// Progress, when non-nil, is called with 1 as each job is delivered.
+	Progress func(n int)
+}
+
+// Result is what Run did.
+type Result struct {
+	Record *RunRecord
+	// Dir is the output folder.
+	Dir string
+	// Solved and Cached count the jobs computed and taken from the cache;
+	// Failed the jobs that failed.
+	Solved, Cached, Failed int
+	// Sets lists the output sets written, with their files.
+	Sets []formats.Result
+}
+
+// solved is a job's result as it travels from a worker to the writer.
+type solved struct {
+	sol    manifests.Solution
+	cached bool
+}
+
+// Run solves the manifest's jobs (those of opt.Shard) and writes one output
+// set per process into the output folder, then the run record. A process
+// with a failed job gets no files (its set is aborted); the other processes
+// are written. The error is non-nil when anything failed; the Result is
+// valid whenever the output folder could be created.
+func Run(ctx context.Context, m *manifests.Manifest, opt Options) (*Result, error) {
+	log := opt.Logger
+	if log == nil {
+		log = slog.New(slog.DiscardHandler)
+	}
+	dir := opt.Out
+	if dir == "" {
+		dir = m.OutputDir()
+	}
+	if err := os.MkdirAll(dir, 0o755); err != nil {
+		return nil, fmt.Errorf("batch: output folder: %w", err)
+	}
+	format := formats.Parquet
+	if m.Output.Format == manifests.FormatArrow {
+		format = formats.Arrow
+	}
+	if opt.Format != nil {
+		format = *opt.Format
+	}
+	sh := opt.Shard
+	if sh.Count == 0 {
+		sh = shard.All
+	}
+	jobs := sh.Jobs(len(m.Jobs))
+	res := &Result{Dir: dir, Record: &RunRecord{
+		Run: m.Run, Manifest: m.File, ManifestHash: m.Hash, Tool: version.Tool, Shard: sh.String(),
+		Jobs: make([]JobRecord, len(jobs)),
+	}}
+	for k, ji := range jobs {
+		j := m.Jobs[ji]
+		res.Record.Jobs[k] = JobRecord{Index: ji, Process: j.Process, Point: j.Point, Params: paramMap(j.Params),
+			SpecHash: j.SpecHash, Status: runner.NotRun.String()}
+	}
+
+	var cachedCount atomic.Int64
+	work := func(ctx context.Context, k int) (solved, error) {
+		if err := ctx.Err(); err != nil {
+			return solved{}, err
+		}
+		job := m.Jobs[jobs[k]]
+		if opt.Cache != nil {
+			var sol manifests.Solution
+			hit, err := opt.Cache.Get(job.SpecHash, &sol)
+			if err != nil {
+				log.Warn("damaged cache entry; solving again", "process", job.Process, "point", job.Point, "error", err)
+			}
+			if hit {
+				cachedCount.Add(1)
+				return solved{sol: sol, cached: true}, nil
+			}
+		}
+		prob, err := job.Build()
+		if err != nil {
+			return solved{}, err
+		}
+		sol, err := prob.Solve()
+		if err != nil {
+			return solved{}, err
+		}
+		if opt.Cache != nil {
+			if err := opt.Cache.Put(job.SpecHash, &sol); err != nil {
+				log.Warn("could not store in cache", "process", job.Process, "point", job.Point, "error", err)
+			}
+		}
+		return solved{sol: sol}, nil
+	}
+
+	sets := newSetWriter(m, dir, format)
+	defer sets.abort()
+	sink := func(k int, v solved, jobErr error) error {
+		job := m.Jobs[jobs[k]]
+		rec := &res.Record.Jobs[k]
+		if opt.Progress != nil {
+			opt.Progress(1)
+		}
+		if jobErr != nil {
+			rec.Status, rec.Error = runner.Failed.String(), jobErr.Error()
+			res.Failed++
+			log.Error("job failed", "process", job.Process, "point", job.Point, "error", jobErr)
+			sets.fail(job.Process)
+			return nil
+		}
+		rec.Status = runner.Done.String()
+		rec.Fallbacks = v.sol.Chain.Fallbacks()
+		if rec.Fallbacks > 0 {
+			log.Debug("states fell back to fewer moments", "process", job.Process, "point", job.Point,
+				"states", rec.Fallbacks, "of", v.sol.Chain.States())
+		}
+		hash, err := sets.append(job, v.sol)
+		if err != nil {
+			return err
+		}
+		rec.ChainHash = hash
+		return nil
+	}
+	report, runErr := runner.Run(ctx, len(jobs), runner.Options{Workers: opt.Workers, KeepGoing: true}, work, sink)
+	for k, st := range report.Jobs {
+		if st.State != runner.Done && res.Record.Jobs[k].Status == runner.NotRun.String() {
+			res.Record.Jobs[k].Status = st.State.String()
+			if st.Err != nil {
+				res.Record.Jobs[k].Error = st.Err.Error()
+			}
+		}
+	}
+	res.Cached = int(cachedCount.Load())
+	res.Solved = report.Done - res.Cached
+	if runErr == nil {
+		written, err := sets.close()
+		res.Sets = written
+		runErr = err
+	}
+	for _, s := range res.Sets {
+		for _, f := range s.Files {
+			res.Record.Files = append(res.Record.Files, FileRecord{Path: filepath.Base(f.Path), Table: f.Table, Rows: f.Rows, ContentHash: f.ContentHash})
+		}
+	}
+	if runErr == nil && res.Failed > 0 {
+		runErr = fmt.Errorf("%d of %d jobs failed (see %s)", res.Failed, len(jobs), RecordFile)
+	}
+	res.Record.Succeeded = runErr == nil
+	if err := writeRecord(dir, res.Record); err != nil {
+		runErr = errors.Join(runErr, fmt.Errorf("batch: writing run record: %w", err))
+	}
+	if runErr == nil && !sh.Whole() {
+		runErr = shard.WriteStamp(dir, sh, m.Hash, len(m.Jobs))
+	}
+	return res, runErr
+}
+
+func paramMap(ps []manifests.Param) map[string]float64 {
+	if len(ps) == 0 {
+		return nil
+	}
+	out := make(map[string]float64, len(ps))
+	for _, p := range ps {
+		out[p.Name] = p.Value
+	}
+	return out
+}

@@ -1,0 +1,154 @@
+package batch
+
+import (
+	"bytes"
+	"context"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+
+	"gridstage/cache"
+	"gridstage/formats"
+	"gridstage/manifests"
+	"gridstage/shard"
+)
+
+const sweepManifest = `run: batch-test
+processes:
+  - name: persistent
+    kind: ar1
+    rho: 0.9
+    sigma: 0.1
+    states: 7
+    sweep:
+      vary:
+        rho: [0.5, 0.7, 0.9, 0.95]
+        sigma: [0.1, 0.2]
+  - name: returns
+    kind: iid
+    distribution: {law: lognormal, log_mean: 0.03, log_sd: 0.15}
+    states: 5
+`
+
+func parse(t *testing.T, text string) *manifests.Manifest {
+	t.Helper()
+	m, err := manifests.Parse(strings.NewReader(text), "test.yaml", t.TempDir())
+	if err != nil {
+		t.Fatal(err)
+	}
+	return m
+}
+
+// readAll returns every file of an output folder by name.
+func readAll(t *testing.T, dir string) map[string][]byte {
+	t.Helper()
+	out := map[string][]byte{}
+	entries, err := os.ReadDir(dir)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, e := range entries {
+		b, err := os.ReadFile(filepath.Join(dir, e.Name()))
+		if err != nil {
+			t.Fatal(err)
+		}
+		out[e.Name()] = b
+	}
+	return out
+}
+
+// The same manifest gives byte-identical files with 1 or 4 workers, with
+// or without a (warm) cache, and the warm run solves nothing.
+func TestRunDeterministicAcrossWorkersAndCache(t *testing.T) {
+	m := parse(t, sweepManifest)
+	c, err := cache.Open(t.TempDir())
+	if err != nil {
+		t.Fatal(err)
+	}
+	var outputs []map[string][]byte
+	for k, opt := range []Options{{Workers: 1}, {Workers: 4, Cache: c}, {Workers: 2, Cache: c}} {
+		opt.Out = t.TempDir()
+		res, err := Run(context.Background(), m, opt)
+		if err != nil {
+			t.Fatalf("run %d: %v", k, err)
+		}
+		if k == 2 && (res.Solved != 0 || res.Cached != len(m.Jobs)) {
+			t.Errorf("warm run solved %d and took %d from the cache, want 0 and %d", res.Solved, res.Cached, len(m.Jobs))
+		}
+		if _, err := formats.Verify(opt.Out); err != nil {
+			t.Errorf("run %d: verify: %v", k, err)
+		}
+		outputs = append(outputs, readAll(t, opt.Out))
+	}
+	if len(outputs[0]) != 11 { // 5 tables × 2 processes + run.json
+		t.Errorf("%d files written, want 11", len(outputs[0]))
+	}
+	for k := 1; k < len(outputs); k++ {
+		for name, b := range outputs[0] {
+			if !bytes.Equal(b, outputs[k][name]) {
+				t.Errorf("run %d: %s differs from the single-worker run", k, name)
+			}
+		}
+	}
+}
+
+// Shards together cover every job once and leave a stamp; the run record
+// lists only the shard's jobs.
+func TestRunShards(t *testing.T) {
+	m := parse(t, sweepManifest)
+	seen := map[string]int{}
+	for i := 1; i <= 3; i++ {
+		dir := t.TempDir()
+		res, err := Run(context.Background(), m, Options{Out: dir, Shard: shard.Shard{Index: i, Count: 3}})
+		if err != nil {
+			t.Fatal(err)
+		}
+		for _, j := range res.Record.Jobs {
+			seen[j.SpecHash]++
+		}
+		if _, _, err := shard.ReadStamp(dir); err != nil {
+			t.Errorf("shard %d: %v", i, err)
+		}
+	}
+	if len(seen) != len(m.Jobs) {
+		t.Errorf("shards covered %d of %d jobs", len(seen), len(m.Jobs))
+	}
+	for h, n := range seen {
+		if n != 1 {
+			t.Errorf("job %s ran %d times", h, n)
+		}
+	}
+}
+
+// A run canceled before it finishes leaves no output set under its final
+// names; running again completes it.
+func TestRunCanceledLeavesNothingThatLooksComplete(t *testing.T) {
+	// Enough jobs that most are still unsolved when the run is canceled.
+	m := parse(t, strings.Replace(sweepManifest, "sigma: [0.1, 0.2]", "sigma: {from: 0.05, to: 1, count: 40}", 1))
+	dir := t.TempDir()
+	ctx, cancel := context.WithCancel(context.Background())
+	calls := 0
+	_, err := Run(ctx, m, Options{Out: dir, Workers: 1, Progress: func(int) {
+		if calls++; calls == 3 {
+			cancel()
+		}
+	}})
+	if err == nil {
+		t.Fatal("canceled run reported success")
+	}
+	sets, _ := formats.FindSets(dir)
+	if len(sets) != 0 {
+		t.Errorf("canceled run left %d sets that look complete", len(sets))
+	}
+	rec, err := ReadRecord(dir)
+	if err != nil || rec.Succeeded {
+		t.Errorf("run record after cancel: %+v, %v", rec, err)
+	}
+	if _, err := Run(context.Background(), m, Options{Out: dir}); err != nil {
+		t.Fatal(err)
+	}
+	if _, err := formats.Verify(dir); err != nil {
+		t.Errorf("after the rerun: %v", err)
+	}
+}

@@ -1,0 +1,154 @@
+package main
+
+import (
+	"context"
+	"errors"
+	"fmt"
+	"io"
+	"log/slog"
+	"os"
+	"os/signal"
+	"path/filepath"
+	"syscall"
+	"time"
+
+	"github.com/spf13/cobra"
+
+	"gridstage/batch"
+	"gridstage/cache"
+	"gridstage/formats"
+	"gridstage/logging"
+	"gridstage/manifests"
+	"gridstage/progress"
+	"gridstage/shard"
+)
+
+func init() { extraCommands = append(extraCommands, newRunCmd) }
+
+func newRunCmd() *cobra.Command {
+	var (
+		out, format, cacheDir, shardFlag, logFormat string
+		workers                                     int
+	)
+	cmd := &cobra.Command{
+		Use:   "run MANIFEST [--out DIR]",
+		Short: "Solve every job of a run manifest and write the chains with their provenance",
+		Long: `Solve every job (process × sweep point) of a run manifest and write, per
+process, Parquet (or Arrow) tables of transitions, states, diagnostics,
+summaries and sweep points, plus run.json listing each job with its spec
+hash, chain hash and status. Exit status 0 only if every job succeeded.
+
+Solved jobs are kept in a content-addressed cache (by spec hash), so a
+re-run or a run resumed after a crash solves nothing twice. The cache lives
+in --cache, else $GRIDSTAGE_CACHE, else the user cache folder
+(~/.cache/gridstage); --cache off disables it.
+
+On a Slurm array job the share of jobs is taken from the array variables;
+--shard I/N sets it by hand. Merge shard outputs with "gridstage merge".`,
+		Args: cobra.ExactArgs(1),
+		RunE: func(cmd *cobra.Command, args []string) error {
+			m, err := manifests.Load(args[0])
+			if err != nil {
+				var list manifests.ErrorList
+				if errors.As(err, &list) || errors.Is(err, os.ErrNotExist) {
+					return &usageError{msg: err.Error()}
+				}
+				return badInput("%v", err)
+			}
+			opt := batch.Options{Out: out, Workers: workers}
+			if cmd.Flags().Changed("format") {
+				f, err := formats.ParseFormat(format)
+				if err != nil {
+					return badInput("--format %q is not recognised: want parquet or arrow", format)
+				}
+				opt.Format = &f
+			}
+			if workers < 0 {
+				return badInput("--workers %d is out of range: want 0 (every core) or more", workers)
+			}
+			if opt.Shard, err = shard.Resolve(shardFlag, os.Getenv); err != nil {
+				return badInput("--shard: %v", err)
+			}
+			if err := choice("log-format", logFormat, logging.Formats); err != nil {
+				return err
+			}
+			stderr := cmd.ErrOrStderr()
+			total := len(opt.Shard.Jobs(len(m.Jobs)))
+			if opt.Shard.Count == 0 {
+				total = len(m.Jobs)
+			}
+			bar := progress.New(total, stderr, "solving")
+			defer bar.Close()
+			log, err := logging.New(bar.Writer(), logFormat, slog.LevelInfo)
+			if err != nil {
+				return badInput("%v", err)
+			}
+			opt.Logger, opt.Progress = log, bar.Done
+			if dir := cacheFolder(cacheDir); dir != "" {
+				c, err := cache.Open(dir)
+				if err != nil {
+					log.Warn("cache unavailable; solving everything", "folder", dir, "error", err)
+				} else {
+					opt.Cache = c
+				}
+			}
+			ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt, syscall.SIGTERM)
+			defer stop()
+			start := time.Now()
+			res, err := batch.Run(ctx, m, opt)
+			bar.Close()
+			if res != nil {
+				printRunSummary(cmd.OutOrStdout(), m, res, time.Since(start))
+			}
+			if err != nil {
+				return &exitCodeError{code: exitFailure, err: err}
+			}
+			return nil
+		},
+	}
+	fs := cmd.Flags()
+	fs.StringVar(&out, "out", "", "output folder (default: the manifest's output folder)")
+	fs.StringVar(&format, "format", "parquet", "output format: parquet or arrow (default: the manifest's)")
+	fs.IntVar(&workers, "workers", 0, "jobs solved at once (default: every core)")
+	fs.StringVar(&cacheDir, "cache", "", "cache folder, or off (default: $GRIDSTAGE_CACHE, else the user cache folder)")
+	fs.StringVar(&shardFlag, "shard", "", "run share I of N of the jobs, as I/N (default: from Slurm array variables, else all)")
+	fs.StringVar(&logFormat, "log-format", "text", "log format: text or json")
+	return cmd
+}
+
+// cacheFolder resolves the cache location; "" means no cache.
+func cacheFolder(flag string) string {
+	if flag == "off" {
+		return ""
+	}
+	if d := cache.Dir(flag); d != "" {
+		return d
+	}
+	if d, err := os.UserCacheDir(); err == nil {
+		return filepath.Join(d, "gridstage")
+	}
+	return ""
+}
+
+func printRunSummary(w io.Writer, m *manifests.Manifest, r *batch.Result, took time.Duration) {
+	jobs := len(r.Record.Jobs)
+	fmt.Fprintf(w, "run %q: %d jobs (%d solved, %d from cache, %d failed) in %s, shard %s\n",
+		m.Run, jobs, r.Solved, r.Cached, r.Failed, took.Round(time.Millisecond), r.Record.Shard)
+	fallbacks := 0
+	for _, j := range r.Record.Jobs {
+		if j.Fallbacks > 0 {
+			fallbacks++
+		}
+	}
+	if fallbacks > 0 {
+		fmt.Fprintf(w, "warning: %d jobs have states that matched fewer moments than requested; see the diagnostics tables\n", fallbacks)
+	}
+	for _, s := range r.Sets {
+		for _, f := range s.Files {
+			if f.Table == formats.TablePoints {
+				fmt.Fprintf(w, "  %s  (%d points)\n", f.Path, f.Rows)
+			}
+		}
+	}
+	fmt.Fprintf(w, "  %s\n", filepath.Join(r.Dir, batch.RecordFile))
+}
