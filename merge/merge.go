@@ -1,0 +1,278 @@
+// Package merge combines the outputs of a sharded run (gridstage run
+// --shard I/N, one folder per shard) into the output of the whole run.
+//
+// Shard I of N holds jobs I-1, I-1+N, I-1+2N, … (package shard), so each
+// process's sweep points are dealt round-robin across the shards and each
+// shard holds its points in increasing order. Merging is a streaming k-way
+// merge by (point, age) of the shards' sets, written through the same
+// formats.Writer as a single-machine run: the merged files hold the same
+// rows in the same order, hence the same content hashes, spec digests and
+// chain hashes, and memory does not grow with the number of points.
+//
+// Before writing anything Merge checks that the folders are every shard of
+// one run, each once (their shard stamps), and that the sets agree on
+// their headers; while merging, the formats reader re-checks every chain
+// hash, so a damaged shard file stops the merge.
+package merge
+
+import (
+	"errors"
+	"fmt"
+	"io"
+	"os"
+	"path/filepath"
+	"slices"
+	"strings"
+
+	"gridstage/formats"
+	"gridstage/shard"
+)
+
+// Result describes a merge.
+type Result struct {
+	// Shards is the number of shard folders merged.
+	Shards int
+	// Jobs is the number of jobs of the whole run.
+	Jobs int
+	// Sets lists the merged sets in process-name order.
+	Sets []formats.Result
+}
+
+// InputError reports shard folders that do not form one complete run.
+type InputError struct {
+	Dir     string // the folder concerned, "" when about the whole set
+	Problem string
+}
+
+func (e *InputError) Error() string {
+	if e.Dir == "" {
+		return "merge: " + e.Problem
+	}
+	return "merge: " + e.Dir + ": " + e.Problem
+}
+
+// Merge combines the shard folders into folder out, which is created if
+// needed and must not be one of them. Files of a set appear in out only
+// when the whole set is written.
+func Merge(dirs []string, out string) (*Result, error) {
+	n, jobs, err := checkStamps(dirs)
+	if err != nil {
+		return nil, err
+	}
+	absOut, err := filepath.Abs(out)
+	if err != nil {
+		return nil, err
+	}
+	for _, d := range dirs {
+		if a, _ := filepath.Abs(d); a == absOut {
+			return nil, &InputError{Dir: d, Problem: "the output folder is one of the shard folders"}
+		}
+	}
+	groups, order, err := collectSets(dirs)
+	if err != nil {
+		return nil, err
+	}
+	if err := os.MkdirAll(out, 0o755); err != nil {
+		return nil, fmt.Errorf("merge: cannot create output folder %s: %w", out, err)
+	}
+	res := &Result{Shards: n, Jobs: jobs}
+	points := 0
+	for _, process := range order {
+		r, err := mergeSet(groups[process], out)
+		if err != nil {
+			return nil, err
+		}
+		points += len(r.Points)
+		res.Sets = append(res.Sets, r)
+	}
+	if points != jobs {
+		return nil, &InputError{Problem: fmt.Sprintf("the shards hold %d jobs, their stamps say the run has %d", points, jobs)}
+	}
+	return res, nil
+}
+
+// checkStamps reads every folder's shard stamp and checks that they are
+// shards 1..N of one run, each exactly once.
+func checkStamps(dirs []string) (count, jobs int, err error) {
+	if len(dirs) == 0 {
+		return 0, 0, &InputError{Problem: "no shard folders given"}
+	}
+	seen := map[int]string{}
+	var first shard.Stamp
+	for i, d := range dirs {
+		st, s, err := shard.ReadStamp(d)
+		if err != nil {
+			if errors.Is(err, shard.ErrNoStamp) {
+				return 0, 0, &InputError{Dir: d, Problem: "has no " + shard.StampFile + ": its shard did not finish, or it is not the output of gridstage run --shard"}
+			}
+			return 0, 0, &InputError{Dir: d, Problem: err.Error()}
+		}
+		if i == 0 {
+			first = st
+			count = s.Count
+		}
+		switch {
+		case st.ManifestHash != first.ManifestHash:
+			return 0, 0, &InputError{Dir: d, Problem: fmt.Sprintf("comes from another manifest (hash %s, %s has %s)", st.ManifestHash, dirs[0], first.ManifestHash)}
+		case s.Count != count || st.Jobs != first.Jobs:
+			return 0, 0, &InputError{Dir: d, Problem: fmt.Sprintf("is shard %s of %d jobs, %s is shard %s of %d jobs", s, st.Jobs, dirs[0], first.Shard, first.Jobs)}
+		}
+		if other, dup := seen[s.Index]; dup {
+			return 0, 0, &InputError{Dir: d, Problem: fmt.Sprintf("is shard %s, and so is %s", s, other)}
+		}
+		seen[s.Index] = d
+	}
+	if len(seen) != count {
+		var missing []string
+		for i := 1; i <= count; i++ {
+			if _, ok := seen[i]; !ok {
+				missing = append(missing, fmt.Sprintf("%d/%d", i, count))
+			}
+		}
+		return 0, 0, &InputError{Problem: fmt.Sprintf("shard %s missing (got %d of %d shard folders)", strings.Join(missing, ", "), len(seen), count)}
+	}
+	return count, first.Jobs, nil
+}
+
+// collectSets finds each shard's sets and groups them by process, in
+// process-name order.
+func collectSets(dirs []string) (map[string][]formats.SetRef, []string, error) {
+	groups := map[string][]formats.SetRef{}
+	for _, d := range dirs {
+		refs, err := formats.FindSets(d)
+		if err != nil {
+			return nil, nil, &InputError{Dir: d, Problem: err.Error()}
+		}
+		for _, r := range refs {
+			if prev := groups[r.Process]; len(prev) > 0 && prev[len(prev)-1].Dir == d {
+				return nil, nil, &InputError{Dir: d, Problem: fmt.Sprintf("holds process %s in two formats", r.Process)}
+			}
+			groups[r.Process] = append(groups[r.Process], r)
+		}
+	}
+	order := make([]string, 0, len(groups))
+	for p := range groups {
+		order = append(order, p)
+	}
+	slices.Sort(order)
+	return groups, order, nil
+}
+
+// source is one shard's set being read, with its next record.
+type source struct {
+	r    *formats.Reader
+	next formats.Record
+	done bool
+}
+
+func (s *source) advance() error {
+	rec, err := s.r.Next()
+	if err == io.EOF {
+		s.done = true
+		return nil
+	}
+	if err != nil {
+		return err
+	}
+	s.next = rec
+	return nil
+}
+
+// mergeSet merges one process's sets from the shards into out.
+func mergeSet(refs []formats.SetRef, out string) (formats.Result, error) {
+	var srcs []*source
+	defer func() {
+		for _, s := range srcs {
+			s.r.Close()
+		}
+	}()
+	for _, ref := range refs {
+		r, err := formats.Open(ref, nil)
+		if err != nil {
+			return formats.Result{}, fmt.Errorf("merge: %w", err)
+		}
+		srcs = append(srcs, &source{r: r})
+		if err := sameHeader(srcs[0], srcs[len(srcs)-1]); err != nil {
+			return formats.Result{}, err
+		}
+	}
+	h := srcs[0].r.Header
+	format := refs[0].Format
+	for _, s := range srcs {
+		if s.r.Ref.Format != format {
+			return formats.Result{}, &InputError{Dir: s.r.Ref.Dir, Problem: fmt.Sprintf("holds %s as %s, %s as %s", h.Process, s.r.Ref.Format, refs[0].Dir, format)}
+		}
+		if err := s.advance(); err != nil {
+			return formats.Result{}, fmt.Errorf("merge: %w", err)
+		}
+	}
+	w, err := formats.Create(out, h, formats.Options{Format: format})
+	if err != nil {
+		return formats.Result{}, fmt.Errorf("merge: %w", err)
+	}
+	for {
+		// The source whose next record has the lowest (point, age); a
+		// linear scan, as the number of shards is small next to the rows.
+		var best *source
+		for _, s := range srcs {
+			if s.done {
+				continue
+			}
+			if best == nil || before(s.next, best.next) {
+				best = s
+			}
+		}
+		if best == nil {
+			break
+		}
+		for _, s := range srcs {
+			if s != best && !s.done && s.next.Point == best.next.Point {
+				w.Abort()
+				return formats.Result{}, &InputError{Problem: fmt.Sprintf("process %s point %d is in both %s and %s", h.Process, s.next.Point, best.r.Ref.Dir, s.r.Ref.Dir)}
+			}
+		}
+		if err := w.Append(best.next); err != nil {
+			w.Abort()
+			return formats.Result{}, fmt.Errorf("merge: %s point %d from %s: %w", h.Process, best.next.Point, best.r.Ref.Dir, err)
+		}
+		if err := best.advance(); err != nil {
+			w.Abort()
+			return formats.Result{}, fmt.Errorf("merge: %w", err)
+		}
+	}
+	res, err := w.Close()
+	if err != nil {
+		return formats.Result{}, fmt.Errorf("merge: %w", err)
+	}
+	return res, nil
+}
+
+func before(a, b formats.Record) bool {
+	if a.Point != b.Point {
+		return a.Point < b.Point
+	}
+	return a.Age < b.Age
+}
+
+// sameHeader checks that two shards' sets describe the same process of the
+// same run.
+func sameHeader(a, b *source) error {
+	ha, hb := a.r.Header, b.r.Header
+	diff := ""
+	switch {
+	case ha.Run != hb.Run:
+		diff = fmt.Sprintf("run %q against %q", hb.Run, ha.Run)
+	case ha.ManifestHash != hb.ManifestHash:
+		diff = fmt.Sprintf("manifest hash %s against %s", hb.ManifestHash, ha.ManifestHash)
+	case ha.Kind != hb.Kind || ha.Method != hb.Method || ha.Dim != hb.Dim:
+		diff = fmt.Sprintf("kind %s, method %s, dimension %d against %s, %s, %d", hb.Kind, hb.Method, hb.Dim, ha.Kind, ha.Method, ha.Dim)
+	case !slices.Equal(ha.Params, hb.Params):
+		diff = fmt.Sprintf("swept parameters %v against %v", hb.Params, ha.Params)
+	case ha.Tool != hb.Tool:
+		diff = fmt.Sprintf("tool version %s against %s (run every shard with the same gridstage)", hb.Tool, ha.Tool)
+	}
+	if diff != "" {
+		return &InputError{Dir: b.r.Ref.Dir, Problem: fmt.Sprintf("process %s does not match %s: %s", ha.Process, a.r.Ref.Dir, diff)}
+	}
+	return nil
+}

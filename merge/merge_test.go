@@ -1,0 +1,222 @@
+package merge
+
+import (
+	"crypto/sha256"
+	"encoding/hex"
+	"errors"
+	"fmt"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+
+	"gridstage/formats"
+	"gridstage/shard"
+	"gridstage/solver"
+)
+
+const manifestHash = "0123456789abcdef"
+
+// job is one (process, point) of a made-up run; jobs are numbered in
+// manifest order across processes, as manifests.Manifest.Jobs are.
+type job struct {
+	process string
+	point   int
+	rho     float64
+}
+
+func runJobs() []job {
+	var jobs []job
+	for p := 0; p < 7; p++ {
+		jobs = append(jobs, job{"wages", p, 0.3 + 0.09*float64(p)})
+	}
+	for p := 0; p < 2; p++ { // fewer points than shards: some shards lack this set
+		jobs = append(jobs, job{"productivity", p, -0.4 + 0.5*float64(p)})
+	}
+	return jobs
+}
+
+func record(t *testing.T, j job) formats.Record {
+	t.Helper()
+	proc := solver.AR1{Rho: j.rho, Sigma: 0.2}
+	c, err := proc.Discretize(solver.Settings{States: 5, Moments: 2})
+	if err != nil {
+		t.Fatal(err)
+	}
+	b, err := proc.Discretize(solver.Settings{States: 5, Method: solver.Rouwenhorst})
+	if err != nil {
+		t.Fatal(err)
+	}
+	bd := solver.Diagnose(b, proc)
+	spec := []byte(fmt.Sprintf(`{"kind":"ar1","process":%q,"rho":%v}`, j.process, j.rho))
+	sum := sha256.Sum256(spec)
+	return formats.Record{Point: j.point, Params: map[string]float64{"rho": j.rho}, SpecHash: hex.EncodeToString(sum[:]),
+		Spec: spec, Chain: c, Diag: solver.Diagnose(c, proc), Baseline: &bd}
+}
+
+func header(process string) formats.Header {
+	return formats.Header{Run: "merge-test", Process: process, Kind: "ar1", Method: "maxent", Dim: 1,
+		Params: []string{"rho"}, ManifestHash: manifestHash, Tool: "test"}
+}
+
+// writeRun writes the jobs owned by s into dir, one set per process, and
+// stamps the folder when s is a real shard.
+func writeRun(t *testing.T, dir string, s shard.Shard, format formats.Format) map[string]formats.Result {
+	t.Helper()
+	if err := os.MkdirAll(dir, 0o755); err != nil {
+		t.Fatal(err)
+	}
+	jobs := runJobs()
+	sets := map[string]*formats.Set{}
+	var order []string
+	for i, j := range jobs {
+		if !s.Owns(i) {
+			continue
+		}
+		if sets[j.process] == nil {
+			sets[j.process] = &formats.Set{Header: header(j.process)}
+			order = append(order, j.process)
+		}
+		sets[j.process].Records = append(sets[j.process].Records, record(t, j))
+	}
+	out := map[string]formats.Result{}
+	for _, p := range order {
+		r, err := formats.Write(dir, sets[p], formats.Options{Format: format})
+		if err != nil {
+			t.Fatal(err)
+		}
+		out[p] = r
+	}
+	if !s.Whole() {
+		if err := shard.WriteStamp(dir, s, manifestHash, len(jobs)); err != nil {
+			t.Fatal(err)
+		}
+	}
+	return out
+}
+
+func shardDirs(t *testing.T, root string, n int, format formats.Format) []string {
+	var dirs []string
+	for i := 1; i <= n; i++ {
+		d := filepath.Join(root, fmt.Sprintf("task-%d", i))
+		writeRun(t, d, shard.Shard{Index: i, Count: n}, format)
+		dirs = append(dirs, d)
+	}
+	return dirs
+}
+
+// TestMergeEqualsSingleRun is the contract: merged files have the content
+// hashes of a single-machine run, table by table, and the same per-point
+// chain hashes and spec digest (exact string equality: hashes).
+func TestMergeEqualsSingleRun(t *testing.T) {
+	for _, format := range []formats.Format{formats.Parquet, formats.Arrow} {
+		for _, n := range []int{1, 3, 4} {
+			t.Run(fmt.Sprintf("%s/%d shards", format, n), func(t *testing.T) {
+				root := t.TempDir()
+				single := writeRun(t, filepath.Join(root, "single"), shard.All, format)
+				dirs := shardDirs(t, root, n, format)
+				if n == 1 {
+					// One shard of one: stamp it by hand, as run does only for real shards.
+					if err := shard.WriteStamp(dirs[0], shard.All, manifestHash, len(runJobs())); err != nil {
+						t.Fatal(err)
+					}
+				}
+				// Shard order on the command line does not matter.
+				dirs[0], dirs[len(dirs)-1] = dirs[len(dirs)-1], dirs[0]
+				res, err := Merge(dirs, filepath.Join(root, "merged"))
+				if err != nil {
+					t.Fatal(err)
+				}
+				if res.Shards != n || res.Jobs != 9 || len(res.Sets) != 2 {
+					t.Fatalf("result: %d shards, %d jobs, %d sets", res.Shards, res.Jobs, len(res.Sets))
+				}
+				for _, got := range res.Sets {
+					process := strings.SplitN(filepath.Base(got.Files[0].Path), ".", 2)[0]
+					want := single[process]
+					if got.SpecDigest != want.SpecDigest {
+						t.Errorf("%s: spec digest %s, single run %s", process, got.SpecDigest, want.SpecDigest)
+					}
+					if fmt.Sprint(got.Points) != fmt.Sprint(want.Points) {
+						t.Errorf("%s: point hashes differ from the single run", process)
+					}
+					for k, f := range got.Files {
+						if f.Table != want.Files[k].Table || f.ContentHash != want.Files[k].ContentHash || f.Rows != want.Files[k].Rows {
+							t.Errorf("%s %s: content hash %s (%d rows), single run %s (%d rows)", process, f.Table,
+								f.ContentHash, f.Rows, want.Files[k].ContentHash, want.Files[k].Rows)
+						}
+					}
+				}
+				if _, err := formats.Verify(filepath.Join(root, "merged")); err != nil {
+					t.Errorf("merged folder does not verify: %v", err)
+				}
+			})
+		}
+	}
+}
+
+func TestMergeRejectsIncompleteOrMixedShards(t *testing.T) {
+	root := t.TempDir()
+	dirs := shardDirs(t, root, 4, formats.Parquet)
+	other := filepath.Join(root, "other")
+	writeRun(t, other, shard.Shard{Index: 2, Count: 4}, formats.Parquet)
+	if err := shard.WriteStamp(other, shard.Shard{Index: 2, Count: 4}, "feedface", 9); err != nil {
+		t.Fatal(err)
+	}
+	unstamped := filepath.Join(root, "unfinished")
+	writeRun(t, unstamped, shard.Shard{Index: 4, Count: 4}, formats.Parquet)
+	os.Remove(filepath.Join(unstamped, shard.StampFile))
+
+	cases := []struct {
+		name string
+		dirs []string
+		want string
+	}{
+		{"none", nil, "no shard folders given"},
+		{"missing", dirs[:3], "shard 4/4 missing (got 3 of 4 shard folders)"},
+		{"twice", []string{dirs[0], dirs[1], dirs[1], dirs[2]}, "is shard 2/4, and so is " + dirs[1]},
+		{"other manifest", []string{dirs[0], other, dirs[2], dirs[3]}, "comes from another manifest"},
+		{"unfinished", []string{dirs[0], dirs[1], dirs[2], unstamped}, "has no shard.json"},
+		{"output is a shard", dirs, "the output folder is one of the shard folders"},
+	}
+	for _, c := range cases {
+		out := filepath.Join(root, "merged-"+strings.ReplaceAll(c.name, " ", "-"))
+		if c.name == "output is a shard" {
+			out = dirs[2]
+		}
+		_, err := Merge(c.dirs, out)
+		var ie *InputError
+		if !errors.As(err, &ie) || !strings.Contains(err.Error(), c.want) {
+			t.Errorf("%s: error %v, want one containing %q", c.name, err, c.want)
+		}
+		if c.name != "output is a shard" {
+			if _, statErr := os.Stat(out); statErr == nil {
+				t.Errorf("%s: output folder created despite the error", c.name)
+			}
+		}
+	}
+}
+
+func TestMergeStopsOnDamagedShard(t *testing.T) {
+	root := t.TempDir()
+	dirs := shardDirs(t, root, 2, formats.Arrow)
+	// Flip one byte in the middle of a transitions file; Arrow IPC is
+	// uncompressed, so this changes a probability or its framing.
+	path := filepath.Join(dirs[1], formats.FileName("wages", formats.TableTransitions, formats.Arrow))
+	b, err := os.ReadFile(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	b[len(b)/2] ^= 0x01
+	if err := os.WriteFile(path, b, 0o644); err != nil {
+		t.Fatal(err)
+	}
+	out := filepath.Join(root, "merged")
+	_, err = Merge(dirs, out)
+	if err == nil {
+		t.Fatal("merged a damaged shard")
+	}
+	t.Log(err)
+	if sets, _ := formats.FindSets(out); len(sets) > 0 && sets[0].Process == "wages" {
+		t.Fatal("a set of the damaged process appeared in the output")
+	}
+}
