@@ -17,11 +17,15 @@ import (
 	"gridstage/plugin"
 )
 
+// fakeStageDir is the temporary folder of the built stage, removed by TestMain.
+var fakeStageDir string
+
 var buildFake = sync.OnceValues(func() (string, error) {
 	dir, err := os.MkdirTemp("", "fakestage")
 	if err != nil {
 		return "", err
 	}
+	fakeStageDir = dir
 	bin := filepath.Join(dir, "fakestage")
 	if out, err := exec.Command("go", "build", "-o", bin, "./testdata/fakestage").CombinedOutput(); err != nil {
 		return "", errors.New(string(out))
@@ -31,8 +35,8 @@ var buildFake = sync.OnceValues(func() (string, error) {
 
 func TestMain(m *testing.M) {
 	code := m.Run()
-	if bin, err := buildFake(); err == nil {
-		os.RemoveAll(filepath.Dir(bin))
+	if fakeStageDir != "" {
+		os.RemoveAll(fakeStageDir)
 	}
 	os.Exit(code)
 }

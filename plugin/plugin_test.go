@@ -109,12 +109,16 @@ func TestProtocolInProcess(t *testing.T) {
 	}
 }
 
+// faultStageDir is the temporary folder of built binaries, removed by TestMain.
+var faultStageDir string
+
 // buildFaultStage compiles testdata/faultstage once per test binary.
 var buildFaultStage = sync.OnceValues(func() (string, error) {
 	dir, err := os.MkdirTemp("", "faultstage")
 	if err != nil {
 		return "", err
 	}
+	faultStageDir = dir
 	bin := filepath.Join(dir, "faultstage")
 	out, err := exec.Command("go", "build", "-o", bin, "./testdata/faultstage").CombinedOutput()
 	if err != nil {
@@ -137,8 +141,8 @@ func faultStage(t *testing.T) string {
 
 func TestMain(m *testing.M) {
 	code := m.Run()
-	if bin, err := buildFaultStage(); err == nil && bin != "" {
-		os.RemoveAll(filepath.Dir(bin))
+	if faultStageDir != "" {
+		os.RemoveAll(faultStageDir)
 	}
 	os.Exit(code)
 }

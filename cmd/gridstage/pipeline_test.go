@@ -14,6 +14,9 @@ import (
 	"gridstage/plugin"
 )
 
+// stageBinDir is the temporary folder of built binaries, removed by TestMain.
+var stageBinDir string
+
 // buildStages compiles gridstage and modelstage once per test binary: the
 // pipeline launches them as real subprocesses.
 var buildStages = sync.OnceValues(func() (string, error) {
@@ -21,6 +24,7 @@ var buildStages = sync.OnceValues(func() (string, error) {
 	if err != nil {
 		return "", err
 	}
+	stageBinDir = dir
 	out, err := exec.Command("go", "build", "-o", dir+string(filepath.Separator), "gridstage/cmd/gridstage", "gridstage/cmd/modelstage").CombinedOutput()
 	if err != nil {
 		return "", errors.New(string(out))
@@ -37,14 +41,13 @@ func stageBinaries(t *testing.T) string {
 	if err != nil {
 		t.Fatalf("building binaries: %v", err)
 	}
-	t.Cleanup(func() {}) // the folder is removed in TestMain
 	return dir
 }
 
 func TestMain(m *testing.M) {
 	code := m.Run()
-	if dir, err := buildStages(); err == nil && dir != "" {
-		os.RemoveAll(dir)
+	if stageBinDir != "" {
+		os.RemoveAll(stageBinDir)
 	}
 	os.Exit(code)
 }
