@@ -14,6 +14,9 @@ type gaussianVectorLaw struct {
 	sd         []float64 // √Ψ_kk
 }
 
+// vectorQuickIter is the Newton budget before the separation test runs.
+const vectorQuickIter = 12
+
 // vectorMomentCount is the number of moment functions at ladder level l
 // in dimension d: d means, then d(d+1)/2 second cross-moments, then d
 // marginal third and d marginal fourth moments.
@@ -128,9 +131,19 @@ func maxentVectorRows(grid, logW []float64, law gaussianVectorLaw, L int, trans 
 			if warmL == l {
 				start = warm[:cols]
 			}
-			lam, ok := dual.Solve(logq, dev[:n*cols], cols, start, row)
-			if !ok && start != nil {
-				lam, ok = dual.Solve(logq, dev[:n*cols], cols, nil, row)
+			// Feasible states converge in a few Newton steps. When a short
+			// budget runs out, Wolfe's minimum-norm-point test can prove the
+			// target outside the hull and spare the long divergent runs;
+			// otherwise Newton continues, then restarts cold.
+			lam, ok := dual.solve(logq, dev[:n*cols], cols, start, row, vectorQuickIter)
+			if !ok {
+				if separated(dev[:n*cols], n, cols) {
+					continue
+				}
+				lam, ok = dual.Solve(logq, dev[:n*cols], cols, lam, row)
+				if !ok {
+					lam, ok = dual.Solve(logq, dev[:n*cols], cols, nil, row)
+				}
 			}
 			if ok {
 				copy(warm, lam)
