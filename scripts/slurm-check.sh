@@ -45,25 +45,6 @@ say "building gridstage"
 (cd "$repo" && go build -o "$work/bin/gridstage" ./cmd/gridstage && go build -o "$work/bin/contenthashes" ./scripts/contenthashes)
 gs=$work/bin/gridstage
 
-# Until the run command exists in this checkout, check the cluster alone:
-# a 4-task array job and a merge job that depends on it (afterok).
-if ! "$gs" run --help >/dev/null 2>&1; then
-  say "this gridstage has no run command yet: checking the cluster with a plain array job"
-  cluster_start "$work/cluster"
-  mkdir -p "$work/plain"
-  solve=$(sbatch --parsable --array=1-"$tasks" --output="$work/plain/task-%a.out" \
-    --wrap 'echo "task $SLURM_ARRAY_TASK_ID of $SLURM_ARRAY_TASK_COUNT"')
-  merge=$(sbatch --parsable --dependency=afterok:"$solve" --kill-on-invalid-dep=yes \
-    --output="$work/plain/merge.out" --wrap "cat $work/plain/task-*.out")
-  cluster_wait "$merge" 300 || fail "the jobs did not finish in 300 s"
-  for i in $(seq 1 "$tasks"); do
-    grep -qx "task $i of $tasks" "$work/plain/merge.out" || fail "merge output lacks task $i: $(cat "$work/plain/merge.out")"
-  done
-  ok=1
-  say "passed (cluster only)"
-  exit 0
-fi
-
 say "single-machine run of $manifest"
 "$gs" run "$manifest" --out "$work/single" --cache off --log-format json >"$work/single.log" 2>&1 ||
   { cat "$work/single.log" >&2; fail "single-machine run failed"; }
