@@ -64,8 +64,25 @@ func writeCanonical(b *bytes.Buffer, v any) {
 }
 
 func writeString(b *bytes.Buffer, s string) {
+	if plainASCII(s) { // the usual case: names, laws, methods
+		b.WriteByte('"')
+		b.WriteString(s)
+		b.WriteByte('"')
+		return
+	}
 	enc := json.NewEncoder(b)
 	enc.SetEscapeHTML(false)
 	_ = enc.Encode(s)
 	b.Truncate(b.Len() - 1) // Encode appends a newline
+}
+
+// plainASCII reports whether s needs no escaping in JSON: printable ASCII
+// without quote or backslash.
+func plainASCII(s string) bool {
+	for i := 0; i < len(s); i++ {
+		if c := s[i]; c < 0x20 || c >= 0x7f || c == '"' || c == '\\' {
+			return false
+		}
+	}
+	return true
 }

@@ -2,6 +2,8 @@ package manifests
 
 import (
 	"math/big"
+	"strconv"
+	"strings"
 
 	"go.yaml.in/yaml/v3"
 )
@@ -192,12 +194,33 @@ func (d *decoder) decodeRange(n *yaml.Node, path string) []num {
 }
 
 // exact returns the number as the exact decimal written in the manifest,
-// or the float64's exact value when the text is not a plain decimal.
+// or the float64's exact value when the text is not a short plain decimal.
+// Long texts and huge exponents are refused because the exact value of
+// "1e-1000000" takes seconds to build.
 func exact(n num) *big.Rat {
-	if r, ok := new(big.Rat).SetString(n.text); ok && n.text != "" {
-		if f, _ := r.Float64(); f == n.v {
-			return r
+	if shortDecimal(n.text) {
+		if r, ok := new(big.Rat).SetString(n.text); ok {
+			if f, _ := r.Float64(); f == n.v {
+				return r
+			}
 		}
 	}
 	return new(big.Rat).SetFloat64(n.v)
+}
+
+// shortDecimal accepts texts of at most 40 bytes with digits, sign and
+// point, and an exponent of at most 400 in size.
+func shortDecimal(s string) bool {
+	if s == "" || len(s) > 40 {
+		return false
+	}
+	mant, exp, hasExp := strings.Cut(strings.ToLower(s), "e")
+	if strings.Trim(mant, "+-.0123456789") != "" {
+		return false
+	}
+	if !hasExp {
+		return true
+	}
+	e, err := strconv.Atoi(exp)
+	return err == nil && e >= -400 && e <= 400
 }
