@@ -11,20 +11,20 @@ import (
 
 // Record is one row of the ledger: one chain used by one estimate.
 type Record struct {
-	EstimateID   string    // content-derived id of the estimate (see EstimateID)
-	EstimatePath string    // where the estimate's values were written
-	Pipeline     string    // name of the pipeline that ran it
-	Stage        string    // stage name from its Description
-	StageVersion string    // stage version from its Description
-	Model        string    // model the stage solved
-	ChainHash    string    // hash of the chain's numbers
-	SpecHash     string    // spec hash of the job that made the chain
-	ManifestHash string    // hash of the manifest the run came from
-	ChainPath    string    // points file of the set holding the chain
-	FileHash     string    // content hash of ChainPath when the estimate was made
-	Process      string    // process name within the set
-	Point        int       // sweep point within the set
-	Time         time.Time // when the estimate was recorded (UTC, microseconds)
+	EstimateID   string    `json:"estimate_id"`   // content-derived id of the estimate (see EstimateID)
+	EstimatePath string    `json:"estimate_path"` // where the estimate's values were written
+	Pipeline     string    `json:"pipeline"`      // name of the pipeline that ran it
+	Stage        string    `json:"stage"`         // stage name from its Description
+	StageVersion string    `json:"stage_version"` // stage version from its Description
+	Model        string    `json:"model"`         // model the stage solved
+	ChainHash    string    `json:"chain_hash"`    // hash of the chain's numbers
+	SpecHash     string    `json:"spec_hash"`     // spec hash of the job that made the chain
+	ManifestHash string    `json:"manifest_hash"` // hash of the manifest the run came from
+	ChainPath    string    `json:"chain_path"`    // points file of the set holding the chain
+	FileHash     string    `json:"file_hash"`     // content hash of ChainPath when the estimate was made
+	Process      string    `json:"process"`       // process name within the set
+	Point        int       `json:"point"`         // sweep point within the set
+	Time         time.Time `json:"time"`          // when the estimate was recorded (UTC, microseconds)
 }
 
 // Values is the content of an estimate that enters its id.

@@ -39,20 +39,20 @@ type Options struct {
 
 // Result is what a run produced.
 type Result struct {
-	Chains    []plugin.ChainRef
-	Estimates []Written
-	Ledger    string
+	Chains    []plugin.ChainRef `json:"chains"`
+	Estimates []Written         `json:"estimates"`
+	Ledger    string            `json:"ledger"`
 }
 
 // Written is one estimate written to disk and recorded in the ledger.
 type Written struct {
-	ID           string
-	Path         string
-	Stage        string
-	StageVersion string
-	Model        string
-	ChainHashes  []string
-	Scalars      map[string]float64
+	ID           string             `json:"id"`
+	Path         string             `json:"path"`
+	Stage        string             `json:"stage"`
+	StageVersion string             `json:"stage_version"`
+	Model        string             `json:"model"`
+	ChainHashes  []string           `json:"chain_hashes"`
+	Scalars      map[string]float64 `json:"scalars"`
 }
 
 // Run executes the pipeline: discretize the manifest with the grid stage,

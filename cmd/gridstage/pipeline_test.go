@@ -86,13 +86,17 @@ func gridstageCmd(bin string, args ...string) (code int, stdout, stderr string) 
 }
 
 type pipelineResult struct {
-	Chains    []plugin.ChainRef
+	Chains    []plugin.ChainRef `json:"chains"`
 	Estimates []struct {
-		ID, Path, Stage, StageVersion, Model string
-		ChainHashes                          []string
-		Scalars                              map[string]float64
-	}
-	Ledger string
+		ID           string             `json:"id"`
+		Path         string             `json:"path"`
+		Stage        string             `json:"stage"`
+		StageVersion string             `json:"stage_version"`
+		Model        string             `json:"model"`
+		ChainHashes  []string           `json:"chain_hashes"`
+		Scalars      map[string]float64 `json:"scalars"`
+	} `json:"estimates"`
+	Ledger string `json:"ledger"`
 }
 
 func TestPipelineEndToEnd(t *testing.T) {
@@ -197,12 +201,14 @@ stages:
 	}
 	var ans struct {
 		Records []struct {
-			EstimateID, ChainHash, Stage, ManifestHash, ChainPath string
-		}
+			EstimateID   string `json:"estimate_id"`
+			ChainHash    string `json:"chain_hash"`
+			ManifestHash string `json:"manifest_hash"`
+		} `json:"records"`
 		Checks []struct {
-			Kind string
-			OK   bool
-		}
+			Kind string `json:"kind"`
+			OK   bool   `json:"ok"`
+		} `json:"checks"`
 	}
 	if err := json.Unmarshal([]byte(out), &ans); err != nil {
 		t.Fatal(err)
