@@ -17,12 +17,16 @@ import (
 type LifeCycle struct {
 	// Label names the process in titles; Units the state levels.
 	Label, Units string
-	// Ages holds the age of each period, ascending.
+	// Ages holds the age of each period, ascending: one per chain, plus
+	// one for Final when it is given.
 	Ages []float64
 	// Chains[t] holds the age-t grid, and its transition matrix moves
 	// from the age-t grid to the age-(t+1) grid. All ages have the same
 	// number of states.
 	Chains []*solver.Chain
+	// Final optionally holds the grid of the last age, which no transition
+	// leaves (solver.AgeChain.Final).
+	Final []float64
 	// Initial is the distribution over the first age's grid. If nil, the
 	// stationary distribution of the first age's matrix is used instead
 	// and the figure says so.
@@ -51,10 +55,17 @@ type AgeMass struct {
 //	m_{t+1} = m_t P_t.
 func AgeMassOf(l LifeCycle) (AgeMass, error) {
 	T := len(l.Chains)
-	if T == 0 || len(l.Ages) != T {
-		return AgeMass{}, fmt.Errorf("figures: life cycle has %d chains and %d ages; want the same positive number", T, len(l.Ages))
+	want := T
+	if l.Final != nil {
+		want++
+	}
+	if T == 0 || len(l.Ages) != want {
+		return AgeMass{}, fmt.Errorf("figures: life cycle has %d chains, %d final grid(s) and %d ages; want one age per grid", T, want-T, len(l.Ages))
 	}
 	n := l.Chains[0].States()
+	if l.Final != nil && len(l.Final) != n {
+		return AgeMass{}, fmt.Errorf("figures: final grid has %d states, want %d", len(l.Final), n)
+	}
 	for t, c := range l.Chains {
 		checkChain(c)
 		if c.Dim != 1 || c.States() != n {
@@ -74,22 +85,25 @@ func AgeMassOf(l LifeCycle) (AgeMass, error) {
 		return AgeMass{}, errors.New("figures: initial distribution length differs from the number of states")
 	}
 	am.TrueSD = append([]float64(nil), l.TrueSD...)
-	for t, c := range l.Chains {
+	for t := range l.Ages {
+		grid := l.Final
+		if t < T {
+			grid = l.Chains[t].Grid
+		}
 		var mean, m2 float64
 		for i, p := range m {
-			x := c.Grid[i]
 			am.Age = append(am.Age, l.Ages[t])
-			am.Level = append(am.Level, x)
+			am.Level = append(am.Level, grid[i])
 			am.Prob = append(am.Prob, p)
-			mean += p * x
+			mean += p * grid[i]
 		}
 		for i, p := range m {
-			d := c.Grid[i] - mean
+			d := grid[i] - mean
 			m2 += p * d * d
 		}
 		am.Mean = append(am.Mean, mean)
 		am.SD = append(am.SD, math.Sqrt(m2))
-		if t == T-1 {
+		if t == len(l.Ages)-1 {
 			break
 		}
 		next := make([]float64, n)
@@ -97,7 +111,7 @@ func AgeMassOf(l LifeCycle) (AgeMass, error) {
 			if p == 0 {
 				continue
 			}
-			for j, q := range c.Row(i) {
+			for j, q := range l.Chains[t].Row(i) {
 				next[j] += p * q
 			}
 		}

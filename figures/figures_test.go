@@ -323,6 +323,34 @@ func TestAgeMassPushesTheInitialDistributionForward(t *testing.T) {
 	}
 }
 
+// With a final grid the mass is pushed through the last matrix too: the
+// last Rouwenhorst matrix keeps Binomial(6, ½), now on the final grid.
+func TestAgeMassReachesTheFinalGrid(t *testing.T) {
+	l, _ := lifeCycleCase(t)
+	l.Final = []float64{-3, -2, -1, 0, 1, 2, 3}
+	l.Ages = append(l.Ages, 55)
+	am, err := AgeMassOf(l)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(am.Mean) != 4 || len(am.Prob) != 28 {
+		t.Fatalf("%d ages, %d points; want 4 and 28", len(am.Mean), len(am.Prob))
+	}
+	for k := 0; k < 7; k++ {
+		i := 21 + k
+		if am.Age[i] != 55 || am.Level[i] != l.Final[k] || math.Abs(am.Prob[i]-binomial(6, k)/64) > 1e-14 {
+			t.Errorf("final age state %d: (%g, %g, %g)", k, am.Age[i], am.Level[i], am.Prob[i])
+		}
+	}
+	// s.d. of Binomial(6, ½) on the grid −3…3: √(6/4) = 1.2247…; closed form.
+	if math.Abs(am.SD[3]-math.Sqrt(1.5)) > 1e-14 {
+		t.Errorf("final s.d. %g, want √1.5", am.SD[3])
+	}
+	if names := ForAge(gaussianCase(t, 5)); len(names) != 2 || names[0].Name != "flow" || names[1].Name != "errors" {
+		t.Errorf("ForAge gave %d figures", len(names))
+	}
+}
+
 func TestForChoosesFiguresByShape(t *testing.T) {
 	names := func(c Case) string {
 		figs, err := For(c)

@@ -116,11 +116,14 @@ const errorCeiling = 10
 // momentsFigure draws one log-scale panel per moment.
 func momentsFigure(c Case, m MomentErrors) Figure {
 	main := m.Series[0]
-	sub := fmt.Sprintf("%s asked to match %d moment(s)", main.Method, main.Requested)
-	if k := main.Fallbacks(); k > 0 {
-		sub += fmt.Sprintf(" · %d of %d states fell back to fewer", k, len(main.X))
-	} else {
-		sub += " · every state matched them all"
+	var sub string
+	switch k := main.Fallbacks(); {
+	case main.Requested == 0:
+		sub = main.Method + " targets no conditional moment exactly"
+	case k > 0:
+		sub = fmt.Sprintf("%s asked to match %d moment(s) · %d of %d states fell back to fewer", main.Method, main.Requested, k, len(main.X))
+	default:
+		sub = fmt.Sprintf("%s asked to match %d moment(s) · every state matched them all", main.Method, main.Requested)
 	}
 	if len(m.Series) > 1 {
 		sub += " · baseline " + m.Series[1].Method

@@ -36,3 +36,16 @@ func ForLifeCycle(l LifeCycle) (Figure, error) {
 	}
 	return agesFigure(l, am, append([]float64(nil), l.Ages...)), nil
 }
+
+// ForAge returns the figures of one age of a life-cycle chain: the
+// transition heat map and the moment errors. A single age's matrix moves
+// between two different grids, so it has no stationary distribution of its
+// own to draw; the life-cycle figure shows the mass by age instead.
+func ForAge(c Case) []Figure {
+	checkChain(c.Chain)
+	figs := []Figure{flowFigure(c, FlowOf(c))}
+	if me, ok := MomentErrorsOf(c); ok {
+		figs = append(figs, momentsFigure(c, me))
+	}
+	return figs
+}

@@ -13,6 +13,8 @@ import (
 	"strings"
 	"testing"
 	"time"
+
+	"gridstage/formats"
 )
 
 // chromium finds Debian's headless browser. Outside CI a missing browser
@@ -104,7 +106,7 @@ func pageRequests(t *testing.T, netlog string) []string {
 	return urls
 }
 
-// The report for the example run renders in a real browser to a screenshot
+// The report for an example run renders in a real browser to a screenshot
 // and a PDF, fetches nothing, and is visibly not blank: it shows the three
 // verdict colours.
 func TestReportRendersInChromium(t *testing.T) {
@@ -123,9 +125,15 @@ func TestReportRendersInChromium(t *testing.T) {
 		t.Fatalf("control page: detector saw %q, want its two external requests", got)
 	}
 
+	// The example run: the test manifest solved and written as gridstage
+	// run writes it, read back through the formats reader.
+	run, err := Load(writeRun(t, exampleManifest, formats.Parquet))
+	if err != nil {
+		t.Fatal(err)
+	}
 	page := filepath.Join(dir, "report.html")
 	var buf bytes.Buffer
-	if err := Write(&buf, exampleRun(t), Options{}); err != nil {
+	if err := Write(&buf, run, Options{}); err != nil {
 		t.Fatal(err)
 	}
 	if err := os.WriteFile(page, buf.Bytes(), 0o644); err != nil {

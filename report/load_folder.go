@@ -1,11 +1,149 @@
 package report
 
-// loadFolder reads an output folder written by `gridstage run`.
+import (
+	"errors"
+	"fmt"
+	"path/filepath"
+	"sort"
+
+	"gridstage/figures"
+	"gridstage/formats"
+	"gridstage/manifests"
+	"gridstage/solver"
+)
+
+// loadFolder reads every set of an output folder written by `gridstage
+// run`, after verifying the folder (content hashes, chain hashes, row
+// sums). A verification failure is kept as a failed Check, so the report
+// can warn; files that cannot be read at all are an *InputError.
 func loadFolder(path string) (Run, error) {
-	return Run{}, badInput(path, "reading output folders needs the formats reader, which is not in this build yet")
+	refs, err := formats.FindSets(path)
+	if err != nil {
+		return Run{}, badInput(path, "cannot be read: %v", err)
+	}
+	if len(refs) == 0 {
+		return Run{}, badInput(path, "is not gridstage output: the folder holds no <process>.points.parquet or .points.arrow file")
+	}
+	return loadSets(path, refs)
 }
 
-// loadFolderFile reads the output folder that holds one of its files.
+// loadFolderFile reads the set that one output file belongs to.
 func loadFolderFile(path string) (Run, error) {
-	return Run{}, badInput(path, "reading Parquet or Arrow output needs the formats reader, which is not in this build yet")
+	ref, ok := formats.RefOf(path)
+	if !ok {
+		return Run{}, badInput(path, "is not gridstage output: want a file named <process>.<table>.parquet or .arrow, table one of points, transitions, states, diagnostics, summary")
+	}
+	return loadSets(path, []formats.SetRef{ref})
+}
+
+func loadSets(path string, refs []formats.SetRef) (Run, error) {
+	run := Run{Source: path}
+	hashes := map[string][]File{}
+	verifyPath := path
+	if len(refs) == 1 && filepath.Ext(path) != "" {
+		verifyPath = refs[0].Dir // a file was named: check its whole set's folder
+	}
+	rep, err := formats.Verify(verifyPath)
+	switch {
+	case formats.IsNotOutput(err):
+		return Run{}, badInput(path, "%v", err)
+	case err != nil:
+		run.Checks = append(run.Checks, Check{Subject: verifyPath, Detail: err.Error()})
+	default:
+		run.Checks = append(run.Checks, Check{Subject: verifyPath, OK: true,
+			Detail: fmt.Sprintf("%d file(s) verified: metadata complete, content and chain hashes recompute, every transition row sums to one", len(rep.Files))})
+	}
+	if rep != nil {
+		for _, w := range rep.Warnings {
+			run.Checks = append(run.Checks, Check{Subject: verifyPath, OK: true, Detail: "note: " + w})
+		}
+		for _, f := range rep.Files {
+			process, table, _, ok := formats.ParseFileName(f.Path)
+			if ok {
+				hashes[process] = append(hashes[process], File{Name: filepath.Base(f.Path), Table: table, ContentHash: f.ContentHash})
+			}
+		}
+	}
+	for _, ref := range refs {
+		set, err := formats.Read(ref, nil)
+		if err != nil {
+			if formats.IsNotOutput(err) {
+				return Run{}, badInput(path, "%v", err)
+			}
+			return Run{}, badInput(path, "cannot be read: %v", err)
+		}
+		job, err := jobOf(set)
+		if err != nil {
+			return Run{}, badInput(ref.Path(formats.TablePoints), "%v", err)
+		}
+		job.Files = hashes[ref.Process]
+		sort.Slice(job.Files, func(i, j int) bool { return job.Files[i].Name < job.Files[j].Name })
+		run.Jobs = append(run.Jobs, job)
+		if run.Name == "" {
+			run.Name, run.Tool, run.ManifestHash = set.Run, set.Tool, set.ManifestHash
+		}
+	}
+	return run, nil
+}
+
+// jobOf turns a set's records into a job, one Point per sweep point with
+// one Chain per age.
+func jobOf(s *formats.Set) (Job, error) {
+	j := Job{Process: s.Process, Kind: s.Kind, Method: s.Method, Dim: s.Dim, Params: append([]string(nil), s.Params...)}
+	sort.Strings(j.Params)
+	laws := map[string]figures.Law{} // by canonical spec: sweeps repeat few
+	for _, rec := range s.Records {
+		if rec.Chain == nil {
+			return Job{}, fmt.Errorf("point %d age %d has no chain", rec.Point, rec.Age)
+		}
+		if len(j.Points) == 0 || j.Points[len(j.Points)-1].Index != rec.Point {
+			j.Points = append(j.Points, Point{Index: rec.Point, Params: rec.Params, SpecHash: rec.SpecHash})
+		}
+		pt := &j.Points[len(j.Points)-1]
+		if rec.Chain.Transition == nil {
+			// The last age of a life cycle: a grid no transition leaves.
+			pt.Final, pt.FinalAge = rec.Chain.Grid, rec.Age
+			continue
+		}
+		law, ok := laws[string(rec.Spec)]
+		if !ok {
+			law = lawOf(rec.Spec)
+			laws[string(rec.Spec)] = law
+		}
+		diag := rec.Diag
+		if len(diag.States) != rec.Chain.States() {
+			return Job{}, errors.New("a chain's diagnostics do not cover its states")
+		}
+		law.Mean, law.SD = diag.True.Mean, diag.True.SD
+		cs := figures.Case{Chain: rec.Chain, Diag: &diag, BaselineDiag: rec.Baseline, Law: law}
+		pt.Chains = append(pt.Chains, Chain{Case: cs, Age: rec.Age, Initial: rec.Initial})
+	}
+	return j, nil
+}
+
+// lawOf rebuilds the process from its canonical spec to learn what the
+// figures need beyond the stored diagnostics: whether the stationary law
+// is exactly normal, and a vector process's stationary covariance. A spec
+// this build cannot parse gives a law with only the stored moments.
+func lawOf(spec []byte) figures.Law {
+	job, err := manifests.ParseSpec(spec)
+	if err != nil {
+		return figures.Law{}
+	}
+	p, err := job.Build()
+	if err != nil {
+		return figures.Law{}
+	}
+	var l figures.Law
+	if ar, ok := p.Model.(solver.AR1); ok {
+		l.Gaussian = ar.Shock == nil
+	}
+	if v, ok := p.Model.(interface {
+		StationaryMean() []float64
+		StationaryCov() []float64
+	}); ok {
+		l.MeanVec, l.Cov = v.StationaryMean(), v.StationaryCov()
+		l.Gaussian = true
+	}
+	return l
 }

@@ -111,7 +111,11 @@ func buildPage(r Run, opt Options) (page, error) {
 			for ci, c := range pt.Chains {
 				k := ref{ji, pi, ci}
 				all = append(all, k)
-				verdicts[k] = Assess(c.Case)
+				if pt.LifeCycle() {
+					verdicts[k] = AssessAge(c.Case)
+				} else {
+					verdicts[k] = Assess(c.Case)
+				}
 			}
 		}
 	}
@@ -143,20 +147,24 @@ func buildPage(r Run, opt Options) (page, error) {
 				}
 				cv := chainView{Anchor: anchor, Title: title, Verdict: v}
 				c.Label = title
-				if pt.LifeCycle() && !pointCharted {
-					f, err := figures.ForLifeCycle(pt.lifeCycle(j.Process+", "+pt.Describe(), c.Units))
-					if err == nil {
-						fv, err := embed(f)
+				var figs []figures.Figure
+				if pt.LifeCycle() {
+					if !pointCharted {
+						f, err := figures.ForLifeCycle(pt.AgeFigures(j.Process + ", " + pt.Describe()))
 						if err != nil {
-							return page{}, err
+							cv.Verdict.Reasons = append(cv.Verdict.Reasons, "Life-cycle figure unavailable: "+err.Error())
+						} else {
+							figs = append(figs, f)
 						}
-						cv.Figures = append(cv.Figures, fv)
+						pointCharted = true
 					}
-					pointCharted = true
-				}
-				figs, err := figures.For(c.Case)
-				if err != nil {
-					cv.Verdict.Reasons = append(cv.Verdict.Reasons, "Figures unavailable: "+err.Error())
+					figs = append(figs, figures.ForAge(c.Case)...)
+				} else {
+					fs, err := figures.For(c.Case)
+					if err != nil {
+						cv.Verdict.Reasons = append(cv.Verdict.Reasons, "Figures unavailable: "+err.Error())
+					}
+					figs = fs
 				}
 				for _, f := range figs {
 					fv, err := embed(f)

@@ -56,6 +56,10 @@ type Point struct {
 	// Chains holds one chain per age, in age order; time-invariant
 	// processes have one, at age 0.
 	Chains []Chain
+	// Final is the grid of a life-cycle point's last age, which no
+	// transition leaves, and FinalAge its age; nil otherwise.
+	Final    []float64
+	FinalAge int
 }
 
 // Chain is one chain with what its figures need.
@@ -94,18 +98,23 @@ func (p Point) Describe() string {
 	return fmt.Sprintf("point %d (%s)", p.Index, strings.Join(parts, ", "))
 }
 
-// LifeCycle reports whether the point has one chain per age.
-func (p Point) LifeCycle() bool { return len(p.Chains) > 1 }
+// LifeCycle reports whether the point is an age-varying chain: several
+// ages, or a final grid.
+func (p Point) LifeCycle() bool { return len(p.Chains) > 1 || p.Final != nil }
 
-// lifeCycle assembles the point's chains for the life-cycle figure.
-func (p Point) lifeCycle(label, units string) figures.LifeCycle {
-	l := figures.LifeCycle{Label: label, Units: units}
+// AgeFigures returns the life-cycle figure's data for the point.
+func (p Point) AgeFigures(label string) figures.LifeCycle {
+	l := figures.LifeCycle{Label: label}
 	for i, c := range p.Chains {
 		l.Ages = append(l.Ages, float64(c.Age))
 		l.Chains = append(l.Chains, c.Chain)
 		if i == 0 {
-			l.Initial = c.Initial
+			l.Initial, l.Units = c.Initial, c.Units
 		}
+	}
+	if p.Final != nil {
+		l.Final = p.Final
+		l.Ages = append(l.Ages, float64(p.FinalAge))
 	}
 	return l
 }

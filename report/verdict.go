@@ -57,9 +57,16 @@ const (
 	rowSumTol       = 1e-9
 )
 
-// Assess grades a chain from its structure and diagnostics. It reads the
-// chain and never modifies it.
-func Assess(c figures.Case) Verdict {
+// Assess grades a time-invariant chain from its structure and diagnostics.
+// It reads the chain and never modifies it.
+func Assess(c figures.Case) Verdict { return assess(c, false) }
+
+// AssessAge grades one age of a life-cycle chain: as Assess, except that a
+// matrix that moves between two ages' grids has no long-run behaviour of
+// its own, so the stationary checks are skipped.
+func AssessAge(c figures.Case) Verdict { return assess(c, true) }
+
+func assess(c figures.Case, age bool) Verdict {
 	var v Verdict
 	if err := c.Chain.Check(rowSumTol); err != nil {
 		v.flag(Unfit, "The transition matrix is not a valid probability matrix (%v).", err)
@@ -69,7 +76,7 @@ func Assess(c figures.Case) Verdict {
 		v.flag(Caution, "No diagnostics are stored for this chain, so its moments cannot be checked.")
 		return v
 	}
-	if d.StationaryErr != "" {
+	if d.StationaryErr != "" && !age {
 		v.flag(Unfit, "The chain has no unique stationary distribution (%s).", d.StationaryErr)
 	}
 	if k := c.Chain.Fallbacks(); k > 0 {
@@ -84,7 +91,7 @@ func Assess(c figures.Case) Verdict {
 		v.flag(Unfit, "In %d state(s) a moment recorded as matched is off by up to %.2g (standardized, %s), above the tolerance %.0e.",
 			k, worst, moment, figures.MatchTolerance)
 	}
-	if d.StationaryErr == "" && d.True.SD > 0 {
+	if d.StationaryErr == "" && d.True.SD > 0 && !age {
 		rel := d.Chain.SD/d.True.SD - 1
 		switch {
 		case math.Abs(rel) > sdUnfit || math.IsNaN(rel):

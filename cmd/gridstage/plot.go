@@ -124,7 +124,7 @@ func plotPoint(cmd *cobra.Command, out string, f figures.Format, j report.Job, p
 		fig  figures.Figure
 	}
 	if pt.LifeCycle() {
-		lc, err := figures.ForLifeCycle(lifeCycleOf(j, pt))
+		lc, err := figures.ForLifeCycle(pt.AgeFigures(j.Process + ", " + pt.Describe()))
 		if err != nil {
 			return err
 		}
@@ -140,9 +140,14 @@ func plotPoint(cmd *cobra.Command, out string, f figures.Format, j report.Job, p
 			s += fmt.Sprintf("-age%d", c.Age)
 			c.Label += fmt.Sprintf(", age %d", c.Age)
 		}
-		fs, err := figures.For(c.Case)
-		if err != nil {
-			return fmt.Errorf("%s %s: %w", j.Process, pt.Describe(), err)
+		var fs []figures.Figure
+		if pt.LifeCycle() {
+			fs = figures.ForAge(c.Case)
+		} else {
+			var err error
+			if fs, err = figures.For(c.Case); err != nil {
+				return fmt.Errorf("%s %s: %w", j.Process, pt.Describe(), err)
+			}
 		}
 		for _, fig := range fs {
 			figs = append(figs, struct {
@@ -163,19 +168,6 @@ func plotPoint(cmd *cobra.Command, out string, f figures.Format, j report.Job, p
 		fmt.Fprintln(cmd.OutOrStdout(), path)
 	}
 	return nil
-}
-
-// lifeCycleOf assembles a life-cycle point for its figure.
-func lifeCycleOf(j report.Job, pt report.Point) figures.LifeCycle {
-	l := figures.LifeCycle{Label: j.Process + ", " + pt.Describe()}
-	for i, c := range pt.Chains {
-		if i == 0 {
-			l.Units, l.Initial = c.Units, c.Initial
-		}
-		l.Ages = append(l.Ages, float64(c.Age))
-		l.Chains = append(l.Chains, c.Chain)
-	}
-	return l
 }
 
 // safeName keeps letters, digits, '-', '_' and '.' of a process name for
