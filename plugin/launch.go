@@ -5,6 +5,7 @@ import (
 	"errors"
 	"fmt"
 	"io"
+	"os"
 	"os/exec"
 	"regexp"
 	"slices"
@@ -62,7 +63,9 @@ func Launch(ctx context.Context, argv []string, opt LaunchOptions) (*Process, St
 	}
 	cmd := exec.Command(path, argv[1:]...)
 	cmd.Dir = opt.Dir
-	cmd.Env = opt.Env
+	// The host's environment, then the options' (later entries win), then
+	// go-plugin's handshake variables, which it appends.
+	cmd.Env = append(os.Environ(), opt.Env...)
 	ownProcessGroup(cmd)
 	timeout := opt.StartTimeout
 	if timeout == 0 {
@@ -79,6 +82,7 @@ func Launch(ctx context.Context, argv []string, opt LaunchOptions) (*Process, St
 		Cmd:              cmd,
 		AllowedProtocols: []goplugin.Protocol{goplugin.ProtocolGRPC},
 		StartTimeout:     timeout,
+		SkipHostEnv:      true, // already in cmd.Env, before opt.Env
 		Stderr:           stderr,
 		SyncStderr:       stderr,
 		SyncStdout:       stderr,
@@ -87,7 +91,7 @@ func Launch(ctx context.Context, argv []string, opt LaunchOptions) (*Process, St
 			grpc.MaxCallRecvMsgSize(maxMessage), grpc.MaxCallSendMsgSize(maxMessage))},
 	})
 	p := &Process{name: name, cmd: cmd, client: client, tail: tail}
-	stage, err := p.connect(ctx)
+	stage, err := p.connect(ctx, timeout)
 	if err != nil {
 		p.Close()
 		return nil, nil, err
@@ -95,8 +99,9 @@ func Launch(ctx context.Context, argv []string, opt LaunchOptions) (*Process, St
 	return p, stage, nil
 }
 
-// connect performs the handshake and checks the stage's description.
-func (p *Process) connect(ctx context.Context) (Stage, error) {
+// connect performs the handshake and checks the stage's description, all
+// within the start timeout.
+func (p *Process) connect(ctx context.Context, timeout time.Duration) (Stage, error) {
 	type result struct {
 		raw any
 		err error
@@ -126,7 +131,9 @@ func (p *Process) connect(ctx context.Context) (Stage, error) {
 	if !ok {
 		return nil, fmt.Errorf("stage %s: plugin %q is not a stage", p.name, PluginName)
 	}
-	d, err := stage.Describe(ctx)
+	dctx, cancel := context.WithTimeout(ctx, timeout)
+	defer cancel()
+	d, err := stage.Describe(dctx)
 	if err != nil {
 		return nil, p.Explain("Describe", err)
 	}

@@ -269,6 +269,7 @@ func TestFaultHandshake(t *testing.T) {
 		{"slow-start", LaunchOptions{StartTimeout: 300 * time.Millisecond}, []string{"did not complete the handshake within the start timeout"}},
 		{"garbage", LaunchOptions{}, []string{`printed "hello, this is not a handshake" instead of a handshake line`}},
 		{"version-2", LaunchOptions{}, []string{"speaks stage protocol version 2 but the host speaks version 1"}},
+		{"hang-describe", LaunchOptions{StartTimeout: 500 * time.Millisecond}, []string{"did not answer Describe within the timeout"}},
 	}
 	for _, tc := range cases {
 		t.Run(tc.mode, func(t *testing.T) {

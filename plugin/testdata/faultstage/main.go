@@ -10,6 +10,7 @@
 //	garbage        prints a line that is not a handshake
 //	version-2      speaks only stage protocol version 2
 //	bad-request    rejects Estimate as a bad request
+//	hang-describe  never answers Describe
 package main
 
 import (
@@ -26,6 +27,9 @@ import (
 type stage struct{ mode string }
 
 func (s stage) Describe(context.Context) (plugin.Description, error) {
+	if s.mode == "hang-describe" {
+		select {}
+	}
 	return plugin.Description{Name: "faultstage", Version: "0.0.1", ProtocolVersions: plugin.ProtocolVersions,
 		Capabilities: []string{plugin.CapEstimate}, Models: []string{"sum"}}, nil
 }
