@@ -137,6 +137,7 @@ func (m BrockMirman) Solve(c Chain) (*Growth, error) {
 	ev := make([]float64, ns*nk)
 	next := make([]float64, ns*nk)
 	choice := make([]int, ns*nk)
+	util := make([]float64, ns*nk)
 	expect := func() { // ev[s*nk+j] = Σ_t P_st v[t*nk+j]
 		for s := 0; s < ns; s++ {
 			e := ev[s*nk : (s+1)*nk]
@@ -183,12 +184,16 @@ func (m BrockMirman) Solve(c Chain) (*Growth, error) {
 			}
 			return g, nil
 		}
-		// Howard steps: evaluate the current policy.
+		// Howard steps: evaluate the current policy, whose period utility
+		// is fixed.
+		for k, j := range choice {
+			util[k] = math.Log(output[k] - g.Capital[j])
+		}
 		for h := 0; h < howardSteps; h++ {
 			expect()
 			for k, j := range choice {
 				s := k / nk
-				v[k] = math.Log(output[k]-g.Capital[j]) + m.Beta*ev[s*nk+j]
+				v[k] = util[k] + m.Beta*ev[s*nk+j]
 			}
 		}
 	}

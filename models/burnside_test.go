@@ -4,6 +4,8 @@ import (
 	"errors"
 	"math"
 	"testing"
+
+	"gridstage/solver"
 )
 
 // burnsideSeries is the closed form of Burnside (1998, eq. for v(x)) for the
@@ -113,6 +115,19 @@ func TestBurnsideBadInput(t *testing.T) {
 	for _, tc := range cases {
 		if _, err := tc.m.PriceDividend(tc.c); err == nil {
 			t.Errorf("%s: no error", tc.name)
+		}
+	}
+}
+
+func BenchmarkBurnside21(b *testing.B) {
+	sc, err := solver.AR1{Mean: 0.0179, Rho: -0.139, Sigma: 0.0348}.Discretize(solver.Settings{States: 21})
+	if err != nil {
+		b.Fatal(err)
+	}
+	c := Chain{Levels: sc.Grid, Transition: sc.Transition}
+	for b.Loop() {
+		if _, err := (Burnside{Beta: 0.95, Theta: -1.5}).PriceDividend(c); err != nil {
+			b.Fatal(err)
 		}
 	}
 }

@@ -167,14 +167,18 @@ func (m Savings) Solve(c Chain) (*Wealth, error) {
 	endoA := make([]float64, na)
 	endoC := make([]float64, na)
 	converged := false
+	mu := make([]float64, ns*na) // u'(c) at every (state, asset point)
 	for it := 1; it <= maxIter; it++ {
 		var change float64
+		for k, ck := range cons {
+			mu[k] = m.marginal(ck)
+		}
 		for s := 0; s < ns; s++ {
 			for j, ap := range w.Assets {
 				var e float64
 				for t, p := range c.row(s) {
 					if p != 0 {
-						e += p * m.marginal(cons[t*na+j])
+						e += p * mu[t*na+j]
 					}
 				}
 				endoC[j] = m.inverseMarginal(m.Beta * R * e)

@@ -158,3 +158,16 @@ func TestSavingsBadInput(t *testing.T) {
 		}
 	}
 }
+
+func BenchmarkSavings400x7(b *testing.B) {
+	sc, err := solver.AR1{Rho: 0.95, Sigma: 0.15}.Discretize(solver.Settings{States: 7})
+	if err != nil {
+		b.Fatal(err)
+	}
+	c := Chain{Levels: sc.Grid, Transition: sc.Transition}
+	for b.Loop() {
+		if _, err := (Savings{Beta: 0.95, Gamma: 2, Rate: 0.03}).Solve(c); err != nil {
+			b.Fatal(err)
+		}
+	}
+}
