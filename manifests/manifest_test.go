@@ -277,3 +277,21 @@ func TestDrawsHeaderBlanks(t *testing.T) {
 		t.Errorf("params %v (a byte-order mark and blanks around names must not matter)", got)
 	}
 }
+
+// TestParseSpecErrors checks that a damaged canonical spec (as read from a
+// file's metadata) gives a positioned error rather than a job.
+func TestParseSpecErrors(t *testing.T) {
+	cases := []struct{ spec, want string }{
+		{`{"kind":"ar1","rho":2,"sigma":0.1}`, `canonical spec:1:21: rho: 2 is out of range: want a number in (-1, 1)`},
+		{`{"kind":"ar1","rho":0.5,"sigma":0.1,"name":"x"}`, `canonical spec:1:37: name: unknown key: want one of kind, method, states, moments, grid, width, floden, compare, rho, sigma, mean, innovation, sweep`},
+		{`{"kind":"ar1","rho":0.5,"sigma":0.1,"sweep":{}}`, `canonical spec:1:45: sweep: a canonical spec has no sweep`},
+		{`not json {`, `canonical spec:1:1: the value is "not json {" (text): want a mapping describing a process`},
+		{`{"kind": [}`, `canonical spec:1:1: invalid YAML: did not find expected node content`},
+	}
+	for _, tc := range cases {
+		_, err := ParseSpec([]byte(tc.spec))
+		if err == nil || err.Error() != tc.want {
+			t.Errorf("ParseSpec(%s):\n got %v\nwant %s", tc.spec, err, tc.want)
+		}
+	}
+}

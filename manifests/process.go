@@ -10,9 +10,6 @@ import (
 	"gridstage/solver"
 )
 
-// commonKeys are the keys every process mapping accepts besides its kind's.
-var commonKeys = []string{"name", "kind", "method", "states", "moments", "grid", "width", "floden", "compare", "sweep"}
-
 // defaultStates is the number of grid points when a process gives none.
 const defaultStates = 9
 
