@@ -22,9 +22,10 @@ func newChainHasher() *chainHasher {
 }
 
 // add hashes one age: age, states n and dim as int32 little-endian; the
-// grid (n·dim float64), the transition matrix (n·n float64, row-major), the
-// matched counts (n int32), then 0x00 without an initial distribution or
-// 0x01 and its n float64. Floats are hashed as in the content hash.
+// grid (n·dim float64); 0x00 for a terminal age without transition, or
+// 0x01 and the transition matrix (n·n float64, row-major); the matched
+// counts (n int32); then 0x00 without an initial distribution or 0x01 and
+// its n float64. Floats are hashed as in the content hash.
 func (c *chainHasher) add(age, n, dim int, grid, trans []float64, matched []int32, initial []float64) {
 	b := c.buf[:0]
 	b = binary.LittleEndian.AppendUint32(b, uint32(int32(age)))
@@ -33,8 +34,13 @@ func (c *chainHasher) add(age, n, dim int, grid, trans []float64, matched []int3
 	for _, v := range grid {
 		b = binary.LittleEndian.AppendUint64(b, floatBits(v))
 	}
-	for _, v := range trans {
-		b = binary.LittleEndian.AppendUint64(b, floatBits(v))
+	if trans == nil {
+		b = append(b, 0)
+	} else {
+		b = append(b, 1)
+		for _, v := range trans {
+			b = binary.LittleEndian.AppendUint64(b, floatBits(v))
+		}
 	}
 	for _, m := range matched {
 		b = binary.LittleEndian.AppendUint32(b, uint32(m))

@@ -193,3 +193,32 @@ func copyDir(t testing.TB, dir string) string {
 	}
 	return out
 }
+
+// lifeCycleSet holds one life-cycle point of an invented earnings profile:
+// a chain per age from the solver's age-varying discretization, the
+// initial distribution at age 0, and the final age's grid as a terminal
+// age without transition. (The diagnostics are solver.Diagnose of each age
+// matrix on its own grid: only their storage is under test here.)
+func lifeCycleSet(t testing.TB) *Set {
+	t.Helper()
+	p := solver.LifeCycle{InitialSD: 0.3, Rho: []float64{0.95, 0.9, 0.97}, Sigma: []float64{0.1, 0.12, 0.08}}
+	ac, err := p.Discretize(solver.Settings{States: 5})
+	if err != nil {
+		t.Fatal(err)
+	}
+	s := &Set{Header: Header{Run: "earnings-profile", Process: "income", Kind: "lifecycle", Method: "maxent", Dim: 1}}
+	base := Record{Point: 0, Params: map[string]float64{}, SpecHash: "0c0ffee", Spec: []byte(`{"kind":"lifecycle"}`)}
+	for a, c := range ac.Ages {
+		r := base
+		r.Age, r.Chain = a, c
+		r.Diag = solver.Diagnose(c, solver.AR1{Rho: p.Rho[a], Sigma: p.Sigma[a]})
+		if a == 0 {
+			r.Initial = ac.Initial
+		}
+		s.Records = append(s.Records, r)
+	}
+	final := base
+	final.Age = len(ac.Ages)
+	final.Chain = &solver.Chain{Dim: 1, Grid: ac.Final, Method: ac.Method, Matched: make([]int, len(ac.Final))}
+	return &Set{Header: s.Header, Records: append(s.Records, final)}
+}

@@ -1,11 +1,14 @@
 package formats
 
 import (
+	"crypto/sha256"
+	"encoding/binary"
 	"encoding/hex"
 	"encoding/json"
 	"fmt"
 	"sort"
 	"strconv"
+	"strings"
 )
 
 // FormatVersion is the version of the layout described in docs/FORMATS.md.
@@ -36,6 +39,11 @@ const (
 	KeySpecHash = "gridstage.spec_hash"
 	KeySpec     = "gridstage.spec"
 
+	// KeyMetadataHash is SHA-256 over every other gridstage.* key and its
+	// value (docs/HASHES.md, "Metadata hash"), so that a change to any of
+	// them is detected.
+	KeyMetadataHash = "gridstage.metadata_hash"
+
 	// KeyTableHashes, in the points file only, is a JSON object mapping each
 	// sibling table name to its content hash, binding the set's files
 	// together.
@@ -44,7 +52,26 @@ const (
 
 // requiredKeys are present in every file.
 var requiredKeys = []string{KeyFormatVersion, KeyTable, KeyTool, KeyRun, KeyProcess, KeyKind, KeyMethod,
-	KeyDim, KeyParams, KeyManifestHash, KeyPoints, KeyRows, KeySpecDigest, KeyContentHash}
+	KeyDim, KeyParams, KeyManifestHash, KeyPoints, KeyRows, KeySpecDigest, KeyContentHash, KeyMetadataHash}
+
+// metadataHash returns SHA-256 over the gridstage.* keys of m other than
+// KeyMetadataHash, in byte order of the keys: for each, the key's length as
+// 8 bytes little-endian, the key, the value's length likewise, the value.
+func metadataHash(m map[string]string) string {
+	h := sha256.New()
+	var n [8]byte
+	for _, k := range sortedKeys(m) {
+		if !strings.HasPrefix(k, "gridstage.") || k == KeyMetadataHash {
+			continue
+		}
+		for _, s := range []string{k, m[k]} {
+			binary.LittleEndian.PutUint64(n[:], uint64(len(s)))
+			h.Write(n[:])
+			h.Write([]byte(s))
+		}
+	}
+	return hex.EncodeToString(h.Sum(nil))
+}
 
 // fileMeta is the parsed metadata of one file.
 type fileMeta struct {
@@ -105,6 +132,9 @@ func parseMeta(path string, raw map[string]string) (*fileMeta, error) {
 		if _, ok := raw[k]; !ok {
 			return nil, bad(k, "is missing")
 		}
+	}
+	if got := metadataHash(raw); got != raw[KeyMetadataHash] {
+		return nil, bad(KeyMetadataHash, fmt.Sprintf("is %s but the gridstage metadata hashes to %s: a metadata value was changed", raw[KeyMetadataHash], got))
 	}
 	if v := raw[KeyFormatVersion]; v != FormatVersion {
 		return nil, bad(KeyFormatVersion, fmt.Sprintf("is %q; this gridstage reads format %s", v, FormatVersion))

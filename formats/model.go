@@ -42,7 +42,10 @@ type Record struct {
 	// must be the same for every age of a point.
 	SpecHash string
 	Spec     []byte
-	// Chain is the chain; its Grid has Header.Dim values per state.
+	// Chain is the chain; its Grid has Header.Dim values per state. For the
+	// last age of a life-cycle point, whose grid no transition leaves
+	// (solver.AgeChain.Final), Transition is nil, Matched holds zeros and
+	// Diag and Baseline are empty: only the states are written.
 	Chain *solver.Chain
 	// Initial is an optional distribution over this age's states (for
 	// life-cycle chains, the distribution at entry); nil when absent.

@@ -289,6 +289,27 @@ func (r *Reader) readAge(rec *Record) error {
 		c.Matched[i] = int(m)
 	}
 
+	// A terminal age (a grid no transition leaves) is the last age of a
+	// point and has states only.
+	if r.agesLeft == 1 {
+		inTr, err := r.at(TableTransitions, point, age)
+		if err != nil {
+			return err
+		}
+		inSu, err := r.at(TableSummary, point, age)
+		if err != nil {
+			return err
+		}
+		if !inTr && !inSu {
+			if c.Method, err = solver.ParseMethod(r.Header.Method); err != nil {
+				return r.fail(TablePoints, nil, point, age, "method %q is not one this gridstage knows", r.Header.Method)
+			}
+			r.chainHash.add(age, n, dim, c.Grid, nil, matched, rec.Initial)
+			rec.Chain = c
+			return nil
+		}
+	}
+
 	// transitions
 	tr := r.cur[TableTransitions]
 	c.Transition = make([]float64, n*n)

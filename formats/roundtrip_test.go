@@ -23,6 +23,7 @@ func TestRoundTrip(t *testing.T) {
 		// Small batches split chains across row groups and record batches.
 		{"small-batches", func(t testing.TB) *Set { return sweepSet(t, 3, 2, 9) }, 10},
 		{"two-dimensional", productSet, 0},
+		{"age-varying", lifeCycleSet, 0},
 	}
 	for _, tc := range cases {
 		for _, f := range []Format{Parquet, Arrow} {

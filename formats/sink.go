@@ -66,6 +66,10 @@ func newParquetSink(final string, schema *arrow.Schema, mem memory.Allocator) (*
 		parquet.WithCreatedBy(CreatedBy),
 		parquet.WithCompression(compress.Codecs.Zstd),
 		parquet.WithAllocator(mem),
+		// No min/max statistics: readers may skip row groups on them, and
+		// a damaged statistic would then silently drop rows that verify,
+		// which checks values and not statistics, cannot vouch for.
+		parquet.WithStats(false),
 	)
 	s.fw, err = pqarrow.NewFileWriter(schema, plainWriter{s.buf}, props, pqarrow.NewArrowWriterProperties(pqarrow.WithAllocator(mem)))
 	if err != nil {

@@ -165,12 +165,30 @@ func sniffFormat(f *os.File) (Format, error) {
 func (t *tableFile) open(mem memory.Allocator) (map[string]string, error) {
 	raw := map[string]string{}
 	if t.format == Arrow {
+		fi, err := t.f.Stat()
+		if err != nil {
+			return nil, err
+		}
+		if err := checkIPCFile(t.f, fi.Size()); err != nil {
+			return nil, err
+		}
 		r, err := ipc.NewFileReader(t.f, ipc.WithAllocator(mem))
 		if err != nil {
 			return nil, err
 		}
 		t.ipcr = r
 		t.schema = r.Schema()
+		// Stream readers take the schema (and metadata) from the message
+		// at the start of the file; it must say what the footer says.
+		sr, err := ipc.NewReader(io.NewSectionReader(t.f, 8, fi.Size()-8), ipc.WithAllocator(mem))
+		if err != nil {
+			return nil, fmt.Errorf("leading schema message: %w", err)
+		}
+		lead := sr.Schema()
+		sr.Release()
+		if !lead.Equal(t.schema) || !lead.Metadata().Equal(t.schema.Metadata()) {
+			return nil, fmt.Errorf("the schema at the start of the file differs from the one in its footer")
+		}
 		md := t.schema.Metadata()
 		for i, k := range md.Keys() {
 			raw[k] = md.Values()[i]

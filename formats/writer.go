@@ -69,9 +69,10 @@ type Writer struct {
 	specs  *specDigest
 	done   []PointHash
 
-	cur     *pointRow
-	curHash *chainHasher
-	lastAge int
+	cur      *pointRow
+	curHash  *chainHasher
+	lastAge  int
+	terminal bool // the last record appended had no transition
 
 	err    error // sticky: set by an I/O failure; the writer is unusable
 	closed bool
@@ -169,15 +170,19 @@ func (w *Writer) check(r *Record) error {
 		return bad("chain has %d states", n)
 	case len(c.Grid) != n*c.Dim:
 		return bad("grid has %d values, want %d", len(c.Grid), n*c.Dim)
-	case len(c.Transition) != n*n:
+	case c.Transition != nil && len(c.Transition) != n*n:
 		return bad("transition has %d entries, want %d", len(c.Transition), n*n)
+	case c.Transition == nil && (len(r.Diag.States) != 0 || r.Baseline != nil):
+		return bad("a terminal age (no transition) has no diagnostics")
 	case len(c.Matched) != n:
 		return bad("matched has %d entries, want %d", len(c.Matched), n)
 	case r.Initial != nil && len(r.Initial) != n:
 		return bad("initial distribution has %d entries, want %d", len(r.Initial), n)
 	}
-	if err := checkDiag(&r.Diag, n, w.h.Dim); err != nil {
-		return bad("diagnostics: %v", err)
+	if c.Transition != nil {
+		if err := checkDiag(&r.Diag, n, w.h.Dim); err != nil {
+			return bad("diagnostics: %v", err)
+		}
 	}
 	if r.Baseline != nil {
 		if err := checkDiag(r.Baseline, len(r.Baseline.States), w.h.Dim); err != nil {
@@ -196,6 +201,8 @@ func (w *Writer) check(r *Record) error {
 		switch {
 		case r.Point < w.cur.point:
 			return bad("points must be appended in increasing order (previous point %d)", w.cur.point)
+		case r.Point == w.cur.point && w.terminal:
+			return bad("the point's terminal age %d (a grid without transition) must be its last", w.lastAge)
 		case r.Point == w.cur.point && r.Age <= w.lastAge:
 			return bad("ages of a point must be appended in increasing order (previous age %d)", w.lastAge)
 		case r.Point == w.cur.point && (r.SpecHash != w.cur.specHash || string(r.Spec) != string(w.cur.spec)):
@@ -256,7 +263,7 @@ func (w *Writer) Append(r Record) error {
 		w.curHash = newChainHasher()
 	}
 	w.cur.ages++
-	w.lastAge = r.Age
+	w.lastAge, w.terminal = r.Age, r.Chain.Transition == nil
 	matched := make([]int32, len(r.Chain.Matched))
 	for i, m := range r.Chain.Matched {
 		matched[i] = int32(m)
@@ -267,6 +274,9 @@ func (w *Writer) Append(r Record) error {
 		func() error { return appendStates(w.tables[TableStates], &r, w.h.Dim) },
 		func() error { return appendDiagnostics(w.tables[TableDiagnostics], &r, w.h.Dim) },
 		func() error { return appendSummary(w.tables[TableSummary], &r) },
+	}
+	if w.terminal {
+		steps = steps[1:2]
 	}
 	for _, step := range steps {
 		if err := step(); err != nil {
@@ -352,6 +362,7 @@ func (w *Writer) close() (Result, error) {
 		} else {
 			hashes[name] = meta[KeyContentHash]
 		}
+		meta[KeyMetadataHash] = metadataHash(meta)
 		if err := w.sinks[i].finish(meta); err != nil {
 			return Result{}, err
 		}
