@@ -38,11 +38,12 @@ type LaunchOptions struct {
 // Process is a running stage. Close it when done: it stops the stage and
 // everything the stage started.
 type Process struct {
-	name   string
-	cmd    *exec.Cmd
-	client *goplugin.Client
-	tail   *tailBuffer
-	once   sync.Once
+	name    string
+	cmd     *exec.Cmd
+	client  *goplugin.Client
+	tail    *tailBuffer
+	sockets string // folder for the stage's Unix socket
+	once    sync.Once
 }
 
 // Launch starts the executable argv[0] with arguments argv[1:] as a stage,
@@ -63,9 +64,16 @@ func Launch(ctx context.Context, argv []string, opt LaunchOptions) (*Process, St
 	}
 	cmd := exec.Command(path, argv[1:]...)
 	cmd.Dir = opt.Dir
+	// A Go stage listens on a Unix socket; put it in a folder of our own so
+	// that Close can remove it even when the stage had to be killed.
+	sockets, err := os.MkdirTemp("", "gridstage-stage-")
+	if err != nil {
+		return nil, nil, fmt.Errorf("stage %s: %w", name, err)
+	}
 	// The host's environment, then the options' (later entries win), then
 	// go-plugin's handshake variables, which it appends.
 	cmd.Env = append(os.Environ(), opt.Env...)
+	cmd.Env = append(cmd.Env, goplugin.EnvUnixSocketDir+"="+sockets)
 	ownProcessGroup(cmd)
 	timeout := opt.StartTimeout
 	if timeout == 0 {
@@ -90,7 +98,7 @@ func Launch(ctx context.Context, argv []string, opt LaunchOptions) (*Process, St
 		GRPCDialOptions: []grpc.DialOption{grpc.WithDefaultCallOptions(
 			grpc.MaxCallRecvMsgSize(maxMessage), grpc.MaxCallSendMsgSize(maxMessage))},
 	})
-	p := &Process{name: name, cmd: cmd, client: client, tail: tail}
+	p := &Process{name: name, cmd: cmd, client: client, tail: tail, sockets: sockets}
 	stage, err := p.connect(ctx, timeout)
 	if err != nil {
 		p.Close()
@@ -281,6 +289,9 @@ func (p *Process) Close() {
 		p.client.Kill()
 		if pgid > 0 {
 			killProcessGroup(pgid)
+		}
+		if p.sockets != "" {
+			os.RemoveAll(p.sockets)
 		}
 	})
 }

@@ -197,6 +197,9 @@ func TestProtocolSubprocess(t *testing.T) {
 	if alive(pid) {
 		t.Errorf("stage pid %d still running after Close", pid)
 	}
+	if _, err := os.Stat(p.sockets); !os.IsNotExist(err) {
+		t.Errorf("socket folder %s left behind: %v", p.sockets, err)
+	}
 }
 
 func TestFaultCrash(t *testing.T) {
