@@ -1,0 +1,271 @@
+package main
+
+import (
+	"encoding/json"
+	"fmt"
+	"io"
+	"math"
+	"os"
+	"sort"
+	"strconv"
+	"strings"
+
+	"github.com/spf13/cobra"
+
+	"gridstage/formats"
+	"gridstage/solver"
+)
+
+func init() { extraCommands = append(extraCommands, newInspectCmd) }
+
+// inspectSelection says which chain of a set to show.
+type inspectSelection struct {
+	point int // −1: the first point (or the first matching where)
+	where map[string]float64
+	age   int // −1: the point's first age
+}
+
+func newInspectCmd() *cobra.Command {
+	var (
+		asJSON         bool
+		point, age     int
+		where, process string
+	)
+	cmd := &cobra.Command{
+		Use:   "inspect PATH [--json] [--point N | --where name=value,...] [--age T]",
+		Short: "Show one chain of an output: grid, transition matrix, diagnostics",
+		Long: `Show one chain of a gridstage output: its grid, transition matrix and
+diagnostics, with the sweep point's parameter values and spec hash.
+
+PATH is an output folder or any file of a set. Choose the sweep point by
+index (--point) or by swept parameter values (--where rho=0.9,sigma=0.1;
+values match within a relative 1e-12), and the age of a life-cycle chain
+with --age. By default the first point and its first age are shown. When
+a folder holds several processes, name one with --process.`,
+		Args: cobra.ExactArgs(1),
+		RunE: func(cmd *cobra.Command, args []string) error {
+			sel := inspectSelection{point: -1, age: -1}
+			if cmd.Flags().Changed("point") {
+				if point < 0 {
+					return badInput("--point %d is out of range: want a sweep point index ≥ 0", point)
+				}
+				sel.point = point
+			}
+			if cmd.Flags().Changed("age") {
+				if age < 0 {
+					return badInput("--age %d is out of range: want an age ≥ 0", age)
+				}
+				sel.age = age
+			}
+			if where != "" {
+				if sel.point >= 0 {
+					return badInput("--point and --where both choose the sweep point: give one")
+				}
+				var err error
+				if sel.where, err = parseWhere(where); err != nil {
+					return err
+				}
+			}
+			ref, err := inspectRef(args[0], process)
+			if err != nil {
+				return err
+			}
+			return inspect(cmd.OutOrStdout(), ref, sel, asJSON)
+		},
+	}
+	fs := cmd.Flags()
+	fs.BoolVar(&asJSON, "json", false, "print one JSON object instead of tables")
+	fs.IntVar(&point, "point", 0, "sweep point index")
+	fs.StringVar(&where, "where", "", "choose the sweep point by swept parameter values: name=value,...")
+	fs.IntVar(&age, "age", 0, "age of a life-cycle chain")
+	fs.StringVar(&process, "process", "", "process to show when the folder holds several")
+	return cmd
+}
+
+// parseWhere parses name=value,... into a map.
+func parseWhere(s string) (map[string]float64, error) {
+	out := map[string]float64{}
+	for _, part := range strings.Split(s, ",") {
+		name, val, ok := strings.Cut(strings.TrimSpace(part), "=")
+		if !ok || name == "" {
+			return nil, badInput("--where %q: want name=value pairs separated by commas", s)
+		}
+		v, err := strconv.ParseFloat(strings.TrimSpace(val), 64)
+		if err != nil {
+			return nil, badInput("--where %q: value of %s is %q, want a number", s, name, val)
+		}
+		out[strings.TrimSpace(name)] = v
+	}
+	return out, nil
+}
+
+// inspectRef finds the set to show from a folder or a file path.
+func inspectRef(path, process string) (formats.SetRef, error) {
+	fi, err := os.Stat(path)
+	if err != nil {
+		return formats.SetRef{}, badInput("%s does not exist or cannot be read", path)
+	}
+	if !fi.IsDir() {
+		ref, ok := formats.RefOf(path)
+		if !ok {
+			return formats.SetRef{}, badInput("%s is not gridstage output: want a folder or a file named <process>.<table>.parquet or .arrow", path)
+		}
+		return ref, nil
+	}
+	refs, err := formats.FindSets(path)
+	if err != nil {
+		return formats.SetRef{}, badInput("cannot list %s: %v", path, err)
+	}
+	var names []string
+	for _, r := range refs {
+		if process != "" && r.Process == process {
+			return r, nil
+		}
+		names = append(names, r.Process)
+	}
+	switch {
+	case len(refs) == 0:
+		return formats.SetRef{}, badInput("%s is not gridstage output: it holds no <process>.points.parquet or .arrow file", path)
+	case process != "":
+		return formats.SetRef{}, badInput("--process %q: %s holds %s", process, path, strings.Join(names, ", "))
+	}
+	distinct := map[string]bool{}
+	for _, n := range names {
+		distinct[n] = true
+	}
+	if len(distinct) > 1 {
+		sort.Strings(names)
+		return formats.SetRef{}, badInput("%s holds several processes (%s): choose one with --process", path, strings.Join(names, ", "))
+	}
+	return refs[0], nil
+}
+
+// matches reports whether a record's parameters match a --where filter.
+func matches(params, where map[string]float64) bool {
+	for name, want := range where {
+		got := params[name]
+		if math.Abs(got-want) > 1e-12*math.Max(1, math.Abs(want)) {
+			return false
+		}
+	}
+	return true
+}
+
+func inspect(w io.Writer, ref formats.SetRef, sel inspectSelection, asJSON bool) error {
+	r, err := formats.Open(ref, nil)
+	if err != nil {
+		if formats.IsNotOutput(err) {
+			return badInput("%v", err)
+		}
+		return err
+	}
+	defer r.Close()
+	for name := range sel.where {
+		found := false
+		for _, p := range r.Header.Params {
+			found = found || p == name
+		}
+		if !found {
+			return badInput("--where: %s is not a swept parameter of %s (swept: %s)", name, ref.Process, strings.Join(r.Header.Params, ", "))
+		}
+	}
+	chosen := -1
+	for {
+		rec, err := r.Next()
+		if err == io.EOF {
+			break
+		}
+		if err != nil {
+			return err
+		}
+		if chosen < 0 {
+			ok := (sel.point < 0 || rec.Point == sel.point) && (sel.where == nil || matches(rec.Params, sel.where))
+			if !ok {
+				continue
+			}
+			chosen = rec.Point
+		}
+		if rec.Point != chosen {
+			break
+		}
+		if sel.age < 0 || rec.Age == sel.age {
+			return showRecord(w, r, &rec, asJSON)
+		}
+	}
+	switch {
+	case chosen < 0 && sel.point >= 0:
+		return badInput("%s has no sweep point %d (it has %d points)", ref.Process, sel.point, r.Points)
+	case chosen < 0 && sel.where != nil:
+		return badInput("no sweep point of %s matches --where", ref.Process)
+	case chosen < 0:
+		return badInput("%s holds no chains", ref.Process)
+	}
+	return badInput("sweep point %d of %s has no age %d", chosen, ref.Process, sel.age)
+}
+
+// inspectJSON is what inspect --json prints.
+type inspectJSON struct {
+	Run        string              `json:"run"`
+	Process    string              `json:"process"`
+	Kind       string              `json:"kind"`
+	Point      int                 `json:"point"`
+	Params     map[string]float64  `json:"params"`
+	Age        int                 `json:"age"`
+	SpecHash   string              `json:"spec_hash"`
+	Spec       json.RawMessage     `json:"spec,omitempty"`
+	Method     string              `json:"method"`
+	Moments    int                 `json:"moments"`
+	Grid       [][]float64         `json:"grid"`
+	Transition [][]float64         `json:"transition"`
+	Initial    []float64           `json:"initial,omitempty"`
+	Matched    []int               `json:"matched"`
+	Diag       *solver.Diagnostics `json:"diagnostics,omitempty"`
+	Baseline   *solver.Diagnostics `json:"baseline_diagnostics,omitempty"`
+}
+
+func showRecord(w io.Writer, r *formats.Reader, rec *formats.Record, asJSON bool) error {
+	c := rec.Chain
+	terminal := c.Transition == nil
+	if asJSON {
+		j := inspectJSON{Run: r.Header.Run, Process: r.Header.Process, Kind: r.Header.Kind, Point: rec.Point,
+			Params: rec.Params, Age: rec.Age, SpecHash: rec.SpecHash, Method: c.Method.String(), Moments: c.Moments,
+			Grid: gridRows(c), Transition: [][]float64{}, Initial: rec.Initial, Matched: c.Matched, Baseline: rec.Baseline}
+		if json.Valid(rec.Spec) {
+			j.Spec = rec.Spec
+		}
+		if !terminal {
+			j.Transition = transitionRows(c)
+			j.Diag = &rec.Diag
+		}
+		enc := json.NewEncoder(w)
+		enc.SetIndent("", "  ")
+		return enc.Encode(j)
+	}
+	fmt.Fprintf(w, "run %s, process %s (%s), sweep point %d of %d", r.Header.Run, r.Header.Process, r.Header.Kind, rec.Point, r.Points)
+	if len(r.Header.Params) > 0 {
+		parts := make([]string, len(r.Header.Params))
+		for i, p := range r.Header.Params {
+			parts[i] = fmt.Sprintf("%s=%g", p, rec.Params[p])
+		}
+		fmt.Fprintf(w, " (%s)", strings.Join(parts, ", "))
+	}
+	fmt.Fprintf(w, ", age %d\nspec hash %s\n\n", rec.Age, rec.SpecHash)
+	if terminal {
+		fmt.Fprintf(w, "final age of a life-cycle chain: grid only, no transition\n")
+		for i := 0; i < c.States(); i++ {
+			fmt.Fprintf(w, "%d\t%v\n", i, c.State(i))
+		}
+		return nil
+	}
+	rep := chainReport{Kind: r.Header.Kind, Chain: c, Diag: rec.Diag}
+	if rec.Baseline != nil {
+		m, err := solver.ParseMethod(rec.Baseline.Method)
+		if err == nil {
+			rep.Baseline, rep.BaselineDiag = &solver.Chain{Method: m}, rec.Baseline
+		}
+	}
+	if rec.Initial != nil {
+		fmt.Fprintf(w, "initial distribution: %v\n\n", rec.Initial)
+	}
+	return rep.printText(w)
+}
