@@ -129,7 +129,7 @@ func agesFigure(l LifeCycle, am AgeMass, ages []float64) Figure {
 	}
 	units := l.Units
 	if units == "" {
-		units = "state level"
+		units = "state level (units of the process)"
 	}
 	return Figure{
 		Name:    "ages",

@@ -12,7 +12,7 @@ type Case struct {
 	// Label names the chain in titles, e.g. "wage shock, point 3".
 	Label string
 	// Units names the unit of the state levels in axis labels, e.g.
-	// "log wage"; empty means "state level".
+	// "log wage"; empty means "state level (units of the process)".
 	Units string
 	// Chain is the chain under study.
 	Chain *solver.Chain
@@ -42,7 +42,7 @@ type Law struct {
 // units returns the axis label for state levels.
 func (c Case) units() string {
 	if c.Units == "" {
-		return "state level"
+		return "state level (units of the process)"
 	}
 	return c.Units
 }

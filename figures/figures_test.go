@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"math"
 	"reflect"
+	"strings"
 	"testing"
 
 	"gonum.org/v1/gonum/floats/scalar"
@@ -440,3 +441,25 @@ func TestPlottingNeverMutatesTheChain(t *testing.T) {
 type discard struct{}
 
 func (discard) Write(p []byte) (int, error) { return len(p), nil }
+
+func TestNiceTicks(t *testing.T) {
+	cases := []struct {
+		min, max float64
+		labels   string
+	}{
+		{0, 0.27, "0 0.05 0.1 0.15 0.2 0.25"},
+		{-0.85, 0.85, "-0.75 -0.5 -0.25 0 0.25 0.5 0.75"},
+		{25, 55, "25 30 35 40 45 50 55"},
+	}
+	for _, tc := range cases {
+		var got []string
+		for _, tk := range (niceTicks{}).Ticks(tc.min, tc.max) {
+			if tk.Label != "" {
+				got = append(got, tk.Label)
+			}
+		}
+		if s := strings.Join(got, " "); s != tc.labels {
+			t.Errorf("[%g, %g]: labels %q, want %q", tc.min, tc.max, s, tc.labels)
+		}
+	}
+}

@@ -2,6 +2,8 @@ package figures
 
 import (
 	"image/color"
+	"math"
+	"strconv"
 
 	"gonum.org/v1/plot"
 	"gonum.org/v1/plot/font"
@@ -56,6 +58,7 @@ func newPlot(xLabel, yLabel string) *plot.Plot {
 		a.Color = muted
 		a.Width = 0.6
 		a.Padding = 3
+		a.Tick.Marker = niceTicks{}
 	}
 	p.X.Label.Text = xLabel
 	p.Y.Label.Text = yLabel
@@ -146,4 +149,36 @@ const panelTitleHeight = vg.Length(16)
 func drawPanelTitle(data draw.Canvas, title string) {
 	ts := draw.TextStyle{Color: ink, Font: font.From(sans, labelSize), XAlign: draw.XLeft, YAlign: draw.YBottom, Handler: plot.DefaultTextHandler}
 	data.FillText(ts, vg.Point{X: data.Min.X, Y: data.Max.Y + 5}, title)
+}
+
+// niceTicks marks about six round values (1, 2, 2.5 or 5 times a power of
+// ten apart) with a minor tick between each pair; gonum's default marks
+// only two or three on short ranges.
+type niceTicks struct{}
+
+func (niceTicks) Ticks(min, max float64) []plot.Tick {
+	if !(max > min) || math.IsInf(max-min, 0) {
+		return plot.DefaultTicks{}.Ticks(min, max)
+	}
+	mag := math.Pow(10, math.Floor(math.Log10((max-min)/6)))
+	step := mag
+	for _, m := range []float64{2, 2.5, 5, 10} {
+		// Keep the step whose number of intervals is closest to six.
+		if math.Abs((max-min)/(m*mag)-6) < math.Abs((max-min)/step-6) {
+			step = m * mag
+		}
+	}
+	var ts []plot.Tick
+	for k := math.Ceil(min / step * 2); k <= math.Floor(max/step*2); k++ {
+		v := k * step / 2
+		if math.Abs(v) < step*1e-9 {
+			v = 0
+		}
+		t := plot.Tick{Value: v}
+		if int64(k)%2 == 0 {
+			t.Label = strconv.FormatFloat(v, 'g', 6, 64)
+		}
+		ts = append(ts, t)
+	}
+	return ts
 }

@@ -41,10 +41,12 @@ func Write(w io.Writer, r Run, opt Options) error {
 
 // page is what the template shows.
 type page struct {
-	Run        Run
-	Generator  string
-	Counts     [3]int
-	Glance     []glanceItem
+	Run       Run
+	Generator string
+	Counts    [3]int
+	Glance    []glanceItem
+	// GlanceMore counts sound chains left out of a long at-a-glance list.
+	GlanceMore int
 	FailedChks []Check
 	Jobs       []jobView
 	Omitted    int
@@ -178,7 +180,36 @@ func buildPage(r Run, opt Options) (page, error) {
 		}
 		p.Jobs = append(p.Jobs, jv)
 	}
+	p.Glance, p.GlanceMore = trimGlance(p.Glance)
 	return p, nil
+}
+
+// glanceLimit is the longest at-a-glance list shown in full.
+const glanceLimit = 60
+
+// trimGlance keeps a long list readable: every chain that is not sound
+// (up to the limit), then sound ones while room remains, in reading order.
+func trimGlance(items []glanceItem) ([]glanceItem, int) {
+	if len(items) <= glanceLimit {
+		return items, 0
+	}
+	keep := make([]bool, len(items))
+	n := 0
+	for _, sound := range []bool{false, true} {
+		for i, it := range items {
+			if n < glanceLimit && (it.Level == Sound) == sound {
+				keep[i] = true
+				n++
+			}
+		}
+	}
+	var out []glanceItem
+	for i, it := range items {
+		if keep[i] {
+			out = append(out, it)
+		}
+	}
+	return out, len(items) - len(out)
 }
 
 func chainTitle(j Job, pt Point, c Chain) string {

@@ -2,6 +2,7 @@ package report
 
 import (
 	"bytes"
+	"fmt"
 	"regexp"
 	"strings"
 	"testing"
@@ -98,5 +99,32 @@ func TestFailedChecksRaiseAWarning(t *testing.T) {
 	html := render(t, r, Options{})
 	if !strings.Contains(html, "1 check(s) on the files failed") || !strings.Contains(html, "content hash differs") {
 		t.Error("a failed file check is not shown as a warning")
+	}
+}
+
+func TestLongGlanceListKeepsEveryTroubledChain(t *testing.T) {
+	var items []glanceItem
+	for i := 0; i < 100; i++ {
+		l := Sound
+		if i%10 == 9 {
+			l = Unfit
+		}
+		items = append(items, glanceItem{Level: l, Anchor: fmt.Sprint(i)})
+	}
+	out, more := trimGlance(items)
+	if len(out) != glanceLimit || more != 100-glanceLimit {
+		t.Fatalf("kept %d, %d more; want %d and %d", len(out), more, glanceLimit, 100-glanceLimit)
+	}
+	unfit := 0
+	for k, it := range out {
+		if it.Level == Unfit {
+			unfit++
+		}
+		if k > 0 && out[k-1].Anchor >= it.Anchor && len(out[k-1].Anchor) >= len(it.Anchor) {
+			t.Errorf("order broken at %d: %s after %s", k, it.Anchor, out[k-1].Anchor)
+		}
+	}
+	if unfit != 10 {
+		t.Errorf("%d unfit chains kept, want all 10", unfit)
 	}
 }
