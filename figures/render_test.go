@@ -6,13 +6,21 @@ import (
 	"os"
 	"path/filepath"
 	"testing"
+
+	"gridstage/solver"
 )
 
 // -figures DIR writes every test figure to DIR for a person to look at.
 var figuresDir = flag.String("figures", "", "write rendered test figures to this folder")
 
 func TestRenderEveryFigure(t *testing.T) {
-	for _, c := range []Case{gaussianCase(t, 9), vectorCase(t)} {
+	vp := solver.VAR{Coef: []float64{0.7, 0.05, 0.1, 0.6}, Cov: []float64{0.01, 0.004, 0.004, 0.02}}
+	vc, err := vp.Discretize(solver.Settings{States: 7, Moments: 2})
+	if err != nil {
+		t.Fatal(err)
+	}
+	two := Case{Label: "two-sector", Units: "log productivity", Chain: vc, Law: Law{Cov: vp.StationaryCov(), MeanVec: vp.StationaryMean(), Gaussian: true}}
+	for _, c := range []Case{gaussianCase(t, 9), vectorCase(t), two} {
 		figs, err := For(c)
 		if err != nil {
 			t.Fatal(err)
