@@ -3,12 +3,14 @@
 // transitions table it checks that each row of each transition matrix —
 // each (point, age, from_state) — sums to 1 within 1e-12 and that every
 // probability lies in [0, 1]; for every file, that the gridstage metadata
-// keys are present. It prints one JSON report on stdout and exits 1 on the
+// keys are present and that the content hash recomputed from the values
+// (docs/HASHES.md) matches the one in the metadata. It prints one JSON report on stdout and exits 1 on the
 // first failed check.
 //
 // Usage: node check.mjs FILE...   (files ending in .parquet or .arrow)
 //        node check.mjs --matrix FILE POINT AGE   (print one matrix)
 
+import { createHash } from 'node:crypto';
 import { readFileSync } from 'node:fs';
 import { basename } from 'node:path';
 import { DuckDBInstance } from '@duckdb/node-api';
@@ -26,6 +28,62 @@ const REQUIRED_KEYS = [
   'gridstage.manifest_hash', 'gridstage.points', 'gridstage.rows', 'gridstage.spec_digest',
   'gridstage.content_hash', 'gridstage.metadata_hash',
 ];
+
+// contentHash recomputes a table's content hash from the values a general
+// reader returns, following docs/HASHES.md ("Content hash") — an
+// implementation independent of gridstage's Go code. columns: [{name,
+// type: 'int32'|'float64'|'bool'|'utf8', get(i)}], get returning null for
+// a null.
+function contentHash(table, rows, columns) {
+  const top = createHash('sha256');
+  top.update(`gridstage content hash v1\ntable ${table}\nrows ${rows}\n`);
+  for (const col of columns) {
+    const h = createHash('sha256');
+    const buf = Buffer.alloc(9);
+    for (let i = 0; i < rows; i++) {
+      const v = col.get(i);
+      if (v === null || v === undefined) {
+        h.update(Buffer.from([0]));
+        continue;
+      }
+      buf[0] = 1;
+      switch (col.type) {
+        case 'int32':
+          buf.writeInt32LE(v, 1);
+          h.update(buf.subarray(0, 5));
+          break;
+        case 'float64':
+          if (Number.isNaN(v)) buf.writeBigUInt64LE(0x7FF8000000000000n, 1);
+          else buf.writeDoubleLE(v, 1);
+          h.update(buf);
+          break;
+        case 'bool':
+          buf[1] = v ? 1 : 0;
+          h.update(buf.subarray(0, 2));
+          break;
+        case 'utf8': {
+          const bytes = Buffer.from(v, 'utf8');
+          buf.writeBigUInt64LE(BigInt(bytes.length), 1);
+          h.update(buf);
+          h.update(bytes);
+          break;
+        }
+        default:
+          fail(`${table}: column ${col.name} has type ${col.type}, which has no canonical encoding`);
+      }
+    }
+    top.update(`column ${col.name} ${col.type} ${h.digest('hex')}\n`);
+  }
+  return top.digest('hex');
+}
+
+function checkContentHash(path, table, rows, columns, meta) {
+  const got = contentHash(table, rows, columns);
+  if (got !== meta['gridstage.content_hash']) {
+    fail(`${path}: content hash recomputed here is ${got}, the metadata says ${meta['gridstage.content_hash']}`);
+  }
+  return got;
+}
 
 function fail(msg) {
   console.error('interop check failed: ' + msg);
@@ -52,10 +110,20 @@ async function checkParquet(conn, path) {
   const meta = {};
   for (const r of kv.getRowObjectsJson()) meta[r.k] = r.v;
   checkKeys(path, meta);
-  const n = await conn.runAndReadAll(`SELECT count(*)::INTEGER AS n FROM read_parquet(${f})`);
-  const report = { path, format: 'parquet', table: meta['gridstage.table'], rows: n.getRowObjectsJson()[0].n, metadata: meta };
-  if (report.table !== 'transitions') return report;
+  const all = await conn.runAndReadAll(`SELECT * FROM read_parquet(${f})`);
+  const duckTypes = { INTEGER: 'int32', DOUBLE: 'float64', BOOLEAN: 'bool', VARCHAR: 'utf8' };
+  const names = all.columnNames();
+  const types = all.columnTypes();
+  const data = all.getColumns();
+  const columns = names.map((name, k) => ({ name, type: duckTypes[types[k].toString()] ?? types[k].toString(), get: (i) => data[k][i] }));
+  const report = { path, format: 'parquet', table: meta['gridstage.table'], rows: all.currentRowCount, metadata: meta };
+  if (report.table === 'transitions') await checkParquetRows(conn, path, f, report);
+  // After the row checks, which name the row, not only the file.
+  report.contentHash = checkContentHash(path, report.table, report.rows, columns, meta);
+  return report;
+}
 
+async function checkParquetRows(conn, path, f, report) {
   const bad = await conn.runAndReadAll(
     `SELECT point, age, from_state, to_state, probability FROM read_parquet(${f})
      WHERE NOT (probability >= 0 AND probability <= 1) LIMIT 1`);
@@ -66,7 +134,6 @@ async function checkParquet(conn, path) {
     `SELECT point, age, from_state, fsum(probability) AS total, count(*)::INTEGER AS width
      FROM read_parquet(${f}) GROUP BY point, age, from_state ORDER BY point, age, from_state`);
   summarizeRows(path, report, sums.getRowObjectsJson());
-  return report;
 }
 
 function summarizeRows(path, report, rows) {
@@ -87,8 +154,17 @@ function checkArrow(path) {
   const meta = Object.fromEntries(table.schema.metadata);
   checkKeys(path, meta);
   const report = { path, format: 'arrow', table: meta['gridstage.table'], rows: table.numRows, metadata: meta };
-  if (report.table !== 'transitions') return report;
+  const arrowTypes = { Int32: 'int32', Float64: 'float64', Bool: 'bool', Utf8: 'utf8' };
+  const columns = table.schema.fields.map((field) => {
+    const vec = table.getChild(field.name);
+    return { name: field.name, type: arrowTypes[String(field.type)] ?? String(field.type), get: (i) => vec.get(i) };
+  });
+  if (report.table === 'transitions') checkArrowRows(path, table, report);
+  report.contentHash = checkContentHash(path, report.table, report.rows, columns, meta);
+  return report;
+}
 
+function checkArrowRows(path, table, report) {
   const point = table.getChild('point').toArray();
   const age = table.getChild('age').toArray();
   const from = table.getChild('from_state').toArray();
@@ -109,7 +185,6 @@ function checkArrow(path) {
   }
   for (const r of rows) r.total += r.comp;
   summarizeRows(path, report, rows);
-  return report;
 }
 
 // The query the README shows: one transition matrix as rows of
