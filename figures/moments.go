@@ -128,6 +128,9 @@ func momentsFigure(c Case, m MomentErrors) Figure {
 	if len(m.Series) > 1 {
 		sub += " · baseline " + m.Series[1].Method
 	}
+	if c.Chain.Dim > 1 {
+		sub += fmt.Sprintf(" · errors of component 1 of %d", c.Chain.Dim)
+	}
 	return Figure{
 		Name:    "errors",
 		Title:   "Conditional-moment errors by state",

@@ -3,12 +3,15 @@ package report
 import (
 	"errors"
 	"fmt"
+	"io/fs"
 	"path/filepath"
 	"sort"
 
+	"gridstage/batch"
 	"gridstage/figures"
 	"gridstage/formats"
 	"gridstage/manifests"
+	"gridstage/runner"
 	"gridstage/solver"
 )
 
@@ -64,6 +67,7 @@ func loadSets(path string, refs []formats.SetRef) (Run, error) {
 			}
 		}
 	}
+	run.Checks = append(run.Checks, runRecordChecks(&run, refs[0].Dir)...)
 	for _, ref := range refs {
 		set, err := formats.Read(ref, nil)
 		if err != nil {
@@ -146,4 +150,43 @@ func lawOf(spec []byte) figures.Law {
 		l.Gaussian = true
 	}
 	return l
+}
+
+// runRecordChecks reads run.json, which `gridstage run` writes beside the
+// sets, and turns every job that did not succeed into a failed check: a
+// failed job drops its process's set, so the page must say what is
+// missing. A folder without a record (a merge, files copied by hand) gives
+// no checks.
+func runRecordChecks(run *Run, dir string) []Check {
+	rec, err := batch.ReadRecord(dir)
+	if errors.Is(err, fs.ErrNotExist) {
+		return nil
+	}
+	if err != nil {
+		return []Check{{Subject: filepath.Join(dir, batch.RecordFile), Detail: "the run record cannot be read: " + err.Error()}}
+	}
+	run.Manifest = rec.Manifest
+	var out []Check
+	failed := 0
+	for _, j := range rec.Jobs {
+		if j.Status == runner.Done.String() {
+			continue
+		}
+		failed++
+		if failed > 20 {
+			continue
+		}
+		detail := "status " + j.Status
+		if j.Error != "" {
+			detail += ": " + j.Error
+		}
+		out = append(out, Check{Subject: fmt.Sprintf("job %s point %d", j.Process, j.Point), Detail: detail})
+	}
+	if failed > 20 {
+		out = append(out, Check{Subject: batch.RecordFile, Detail: fmt.Sprintf("%d more jobs did not succeed", failed-20)})
+	}
+	if !rec.Succeeded && failed == 0 {
+		out = append(out, Check{Subject: batch.RecordFile, Detail: "the run did not succeed (see the run record)"})
+	}
+	return out
 }

@@ -2,6 +2,7 @@ package report
 
 import (
 	"errors"
+	"math"
 	"os"
 	"path/filepath"
 	"strings"
@@ -49,5 +50,35 @@ func TestLoadDiscretizeJSON(t *testing.T) {
 	}
 	if r.Source != p || r.Jobs[0].Process != "ar1" {
 		t.Errorf("run %+v", r)
+	}
+}
+
+// The JSON of `discretize var` carries vector diagnostics; the loader
+// recomputes the first-component diagnostics from the process and takes
+// the true stationary covariance from it.
+func TestLoadVARJSON(t *testing.T) {
+	p := filepath.Join(t.TempDir(), "v.json")
+	os.WriteFile(p, []byte(`{"kind": "var", "process": {"dim": 2, "coef": [0.5, 0, 0, 0.5], "cov": [0.01, 0, 0, 0.04], "intercept": [0, 0]},
+		"method": "tauchen", "moments": 0, "grid": [[-0.1,-0.2],[-0.1,0.2],[0.1,-0.2],[0.1,0.2]],
+		"transition": [[0.25,0.25,0.25,0.25],[0.25,0.25,0.25,0.25],[0.25,0.25,0.25,0.25],[0.25,0.25,0.25,0.25]],
+		"matched": [0,0,0,0], "diagnostics": {"states": [{"mean_std_error": [0, 0]}]}}`), 0o644)
+	r, err := Load(p)
+	if err != nil {
+		t.Fatal(err)
+	}
+	c := r.Jobs[0].Points[0].Chains[0]
+	// Stationary covariance of x' = 0.5 x + ε: Var = σ²/(1 − 0.25) per
+	// component, closed form; 1e-15 for rounding.
+	if len(c.Law.Cov) != 4 || math.Abs(c.Law.Cov[0]-0.01/0.75) > 1e-15 || math.Abs(c.Law.Cov[3]-0.04/0.75) > 1e-15 {
+		t.Errorf("true covariance %v", c.Law.Cov)
+	}
+	if c.Diag == nil || len(c.Diag.States) != 4 || math.Abs(c.Diag.True.SD-math.Sqrt(0.01/0.75)) > 1e-15 {
+		t.Fatalf("first-component diagnostics %+v", c.Diag)
+	}
+	// The chain's rows are uniform: conditional mean of component 1 is 0
+	// in every state, against 0.5·x for the process: error 0.05/0.1 = 0.5
+	// standardized in state 0.
+	if got := c.Diag.States[0].RelErr.Mean; math.Abs(got-0.5) > 1e-12 {
+		t.Errorf("state 0 mean error %g, want 0.5", got)
 	}
 }

@@ -17,8 +17,8 @@ type Run struct {
 	// Tool is the gridstage version that wrote the output.
 	Tool string
 	// ManifestHash identifies the manifest; empty for chains not made from
-	// a manifest.
-	ManifestHash string
+	// a manifest. Manifest is the manifest's path as the run recorded it.
+	ManifestHash, Manifest string
 	// Jobs holds one entry per process.
 	Jobs []Job
 	// Checks are file-level checks (content hashes, completeness) made

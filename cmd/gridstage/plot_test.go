@@ -120,3 +120,38 @@ func TestPlotAndReportRejectBadInput(t *testing.T) {
 		}
 	}
 }
+
+// After the main job: run a manifest, then report and plot its output
+// folder through the formats reader.
+func TestReportAndPlotAfterRun(t *testing.T) {
+	out := filepath.Join(t.TempDir(), "kestrel")
+	if code, _, errOut := run(t, "run", "../../testdata/report/kestrel-bay.yaml", "--out", out, "--cache", "off"); code != 0 {
+		t.Fatalf("run: exit %d: %s", code, errOut)
+	}
+	code, stdout, errOut := run(t, "report", out)
+	if code != 0 {
+		t.Fatalf("report: exit %d: %s", code, errOut)
+	}
+	html, err := os.ReadFile(strings.TrimSpace(stdout))
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, want := range []string{"kestrel-bay-earnings", "1 sound", "1 use with care", "1 do not use",
+		"kestrel-bay.yaml", "file(s) verified", "earnings.transitions.parquet"} {
+		if !bytes.Contains(html, []byte(want)) {
+			t.Errorf("report lacks %q", want)
+		}
+	}
+	dir := filepath.Join(t.TempDir(), "figs")
+	code, stdout, errOut = run(t, "plot", out, "--where", "rho=0.9", "--out", dir)
+	if code != 0 {
+		t.Fatalf("plot: exit %d: %s", code, errOut)
+	}
+	if got := strings.Fields(stdout); len(got) != 3 || !strings.HasSuffix(got[0], "earnings-p1-mass.png") {
+		t.Errorf("plot --where rho=0.9 wrote %q", got)
+	}
+	code, _, errOut = run(t, "plot", out, "--point", "5")
+	if code != 2 || !strings.Contains(errOut, "no sweep point matches --point 5 (points 0 to 1 exist)") {
+		t.Errorf("missing point: exit %d, %q", code, errOut)
+	}
+}
