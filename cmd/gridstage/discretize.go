@@ -16,6 +16,7 @@ func newDiscretizeCmd() *cobra.Command {
 
 Kinds:
   ar1   first-order autoregression x' = (1-rho) mean + rho x + sigma z
+  var   vector autoregression x' = c + B x + e, e ~ N(0, Psi)
   iid   a static distribution (returns, transitory income) as weighted points
 
 Without --json the grid, the transition matrix and a diagnostics table
@@ -23,9 +24,9 @@ Without --json the grid, the transition matrix and a diagnostics table
 one JSON object is printed for scripts.`,
 		Args: func(_ *cobra.Command, args []string) error {
 			if len(args) == 0 {
-				return badInput("discretize needs a process kind: ar1 or iid")
+				return badInput("discretize needs a process kind: ar1, var or iid")
 			}
-			return badInput("discretize: unknown process kind %q: want ar1 or iid", args[0])
+			return badInput("discretize: unknown process kind %q: want ar1, var or iid", args[0])
 		},
 		RunE: func(*cobra.Command, []string) error { return nil },
 	}
