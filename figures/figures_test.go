@@ -463,3 +463,21 @@ func TestNiceTicks(t *testing.T) {
 		}
 	}
 }
+
+// The heat map puts state 0 at the top: grid row r holds current state
+// N−1−r, and the tick labelled i sits at height N−1−i.
+func TestFlowGridPutsStateZeroOnTop(t *testing.T) {
+	f := Flow{States: 3, P: []float64{0.1, 0.2, 0.7, 0.3, 0.3, 0.4, 0.5, 0.25, 0.25}, Max: 0.7}
+	g := flowGrid{f}
+	if g.Z(2, 2) != 0.7 || g.Z(0, 0) != 0.5 || g.Y(2) != 2 {
+		t.Errorf("Z(2,2)=%g Z(0,0)=%g: want row 2 to hold state 0", g.Z(2, 2), g.Z(0, 0))
+	}
+	for _, tk := range stateTicks(3, true).Ticks(0, 2) {
+		if tk.Label == "0" && tk.Value != 2 {
+			t.Errorf("state 0 labelled at height %g, want 2", tk.Value)
+		}
+	}
+	if n := len(stateTicks(441, false).Ticks(0, 440)); n > 12 {
+		t.Errorf("%d ticks for 441 states; minor ticks should stop for large chains", n)
+	}
+}

@@ -38,12 +38,15 @@ func FlowOf(c Case) Flow {
 // an image rather than as one rectangle per cell.
 const rasterAbove = 40
 
-// flowGrid adapts Flow to plotter.GridXYZ: column c is the next state,
-// row r the current state.
+// flowGrid adapts Flow to plotter.GridXYZ: column c is the next state;
+// grid row r, drawn at height r, is current state N−1−r, so state 0 sits at
+// the top as in a printed matrix. (Flipping the rows here rather than
+// inverting the axis keeps plotter.HeatMap's raster mode, used for large
+// chains, drawing the right way up.)
 type flowGrid struct{ f Flow }
 
 func (g flowGrid) Dims() (c, r int)   { return g.f.States, g.f.States }
-func (g flowGrid) Z(c, r int) float64 { return g.f.P[r*g.f.States+c] }
+func (g flowGrid) Z(c, r int) float64 { return g.f.P[(g.f.States-1-r)*g.f.States+c] }
 func (g flowGrid) X(c int) float64    { return float64(c) }
 func (g flowGrid) Y(r int) float64    { return float64(r) }
 func (g flowGrid) Min() float64       { return 0 }
@@ -69,27 +72,33 @@ func hexPalette(hex ...string) fixedPalette {
 	return p
 }
 
-// integerTicks labels whole-number positions, about six of them.
-func integerTicks(n int) plot.Ticker {
+// stateTicks labels state indices at round steps (about six labels),
+// with a minor tick at every state while there are few enough to see.
+// With flip set, position v shows state n−1−v (see flowGrid).
+func stateTicks(n int, flip bool) plot.Ticker {
 	return plot.TickerFunc(func(min, max float64) []plot.Tick {
-		step := max1(1, int(math.Ceil(float64(n)/6)))
 		var ts []plot.Tick
-		for i := 0; i < n; i++ {
-			t := plot.Tick{Value: float64(i)}
-			if i%step == 0 || i == n-1 {
-				t.Label = strconv.Itoa(i)
+		label := func(i int) plot.Tick {
+			v := float64(i)
+			if flip {
+				v = float64(n - 1 - i)
 			}
-			ts = append(ts, t)
+			return plot.Tick{Value: v, Label: strconv.Itoa(i)}
+		}
+		for _, t := range (niceTicks{}).Ticks(0, float64(n-1)) {
+			if t.Label != "" && t.Value == math.Trunc(t.Value) {
+				ts = append(ts, label(int(t.Value)))
+			}
+		}
+		if n <= 60 {
+			for i := 0; i < n; i++ {
+				t := label(i)
+				t.Label = ""
+				ts = append(ts, t)
+			}
 		}
 		return ts
 	})
-}
-
-func max1(a, b int) int {
-	if a > b {
-		return a
-	}
-	return b
 }
 
 // flowFigure draws the transition matrix as a heat map with a colour bar.
@@ -100,15 +109,18 @@ func flowFigure(c Case, f Flow) Figure {
 		Caption: "Row i, column j: the probability of moving from state i to state j next period. A persistent process shows a dark band along the diagonal; mass far from the band means large jumps.",
 		Width:   16 * vg.Centimeter, Height: 13 * vg.Centimeter,
 		draw: func(dc draw.Canvas) {
-			body := drawHeader(dc, "Transition matrix · "+c.Label, fmt.Sprintf("%s, %d states · state 0 is the lowest grid point", c.Chain.Method, f.States))
+			order := "state 0 is the lowest grid point"
+			if c.Chain.Dim > 1 {
+				order = "states in grid order, first component slowest"
+			}
+			body := drawHeader(dc, "Transition matrix · "+c.Label, fmt.Sprintf("%s, %d states · %s", c.Chain.Method, f.States, order))
 			p := newPlot("next state j", "current state i")
 			hm := plotter.NewHeatMap(flowGrid{f}, palette.Palette(iridescent))
 			// Above a few thousand cells a vector map bloats SVG files.
 			hm.Rasterized = f.States > rasterAbove
 			p.Add(hm)
-			p.Y.Scale = plot.InvertedScale{Normalizer: plot.LinearScale{}}
-			p.X.Tick.Marker = integerTicks(f.States)
-			p.Y.Tick.Marker = integerTicks(f.States)
+			p.X.Tick.Marker = stateTicks(f.States, false)
+			p.Y.Tick.Marker = stateTicks(f.States, true)
 			p.X.Padding, p.Y.Padding = 0, 0
 
 			barWidth := vg.Length(70)
@@ -122,7 +134,8 @@ func flowFigure(c Case, f Flow) Figure {
 			side := draw.Crop(body, body.Max.X-body.Min.X-barWidth+8, 0, 0, 0)
 			// Match the heat map's vertical extent: its x-axis band at the
 			// bottom.
-			side = draw.Crop(side, 0, 0, p.DataCanvas(main).Min.Y-main.Min.Y, 0)
+			data := p.DataCanvas(main)
+			side = draw.Crop(side, 0, 0, data.Min.Y-main.Min.Y, data.Max.Y-main.Max.Y)
 			bar.Draw(side)
 		},
 	}
