@@ -24,7 +24,7 @@ const Name = "gridstage"
 // Stage discretizes manifests and job specs.
 type Stage struct {
 	// Write runs the jobs of m into dir and returns a reference per chain;
-	// nil means WriteSets.
+	// nil means WriteSets (the engine of `gridstage run`).
 	Write func(ctx context.Context, m *manifests.Manifest, dir string) ([]plugin.ChainRef, error)
 	// Loader reads chains back for Arrow streaming; nil means a new
 	// plugin.FileLoader.
