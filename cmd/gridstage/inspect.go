@@ -27,9 +27,10 @@ type inspectSelection struct {
 
 func newInspectCmd() *cobra.Command {
 	var (
-		asJSON         bool
-		point, age     int
-		where, process string
+		asJSON     bool
+		point, age int
+		process    string
+		where      []string
 	)
 	cmd := &cobra.Command{
 		Use:   "inspect PATH [--json] [--point N | --where name=value,...] [--age T]",
@@ -57,12 +58,12 @@ a folder holds several processes, name one with --process.`,
 				}
 				sel.age = age
 			}
-			if where != "" {
+			if len(where) > 0 {
 				if sel.point >= 0 {
 					return badInput("--point and --where both choose the sweep point: give one")
 				}
 				var err error
-				if sel.where, err = parseWhere(where); err != nil {
+				if sel.where, err = parseWhere(strings.Join(where, ",")); err != nil {
 					return err
 				}
 			}
@@ -76,7 +77,7 @@ a folder holds several processes, name one with --process.`,
 	fs := cmd.Flags()
 	fs.BoolVar(&asJSON, "json", false, "print one JSON object instead of tables")
 	fs.IntVar(&point, "point", 0, "sweep point index")
-	fs.StringVar(&where, "where", "", "choose the sweep point by swept parameter values: name=value,...")
+	fs.StringSliceVar(&where, "where", nil, "choose the sweep point by swept parameter values: name=value,... (repeatable)")
 	fs.IntVar(&age, "age", 0, "age of a life-cycle chain")
 	fs.StringVar(&process, "process", "", "process to show when the folder holds several")
 	return cmd

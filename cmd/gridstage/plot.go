@@ -27,7 +27,7 @@ type pointFlags struct {
 
 func (f *pointFlags) register(cmd *cobra.Command) {
 	cmd.Flags().IntVar(&f.point, "point", 0, "draw only the sweep point with this index")
-	cmd.Flags().StringArrayVar(&f.where, "where", nil, "draw only points whose swept parameter has this value, as name=value (repeatable)")
+	cmd.Flags().StringSliceVar(&f.where, "where", nil, "draw only points whose swept parameters have these values: name=value,... (repeatable)")
 }
 
 func (f *pointFlags) selection(cmd *cobra.Command) (report.Selection, error) {
