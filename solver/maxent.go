@@ -28,7 +28,7 @@ const (
 // search. A Dual reuses its buffers across calls; it is not safe for
 // concurrent use. The zero value is ready to use.
 type Dual struct {
-	a, p                         []float64
+	a, p, aTry, pTry, shift      []float64
 	lam, grad, step, trial, chol []float64
 	hess                         []float64
 	lastIter                     int
@@ -42,7 +42,7 @@ func grow(s []float64, m int) []float64 {
 }
 
 func (w *Dual) resize(n, L int) {
-	w.a, w.p = grow(w.a, n), grow(w.p, n)
+	w.a, w.p, w.aTry, w.pTry, w.shift = grow(w.a, n), grow(w.p, n), grow(w.aTry, n), grow(w.pTry, n), grow(w.shift, n)
 	w.lam, w.grad, w.step, w.trial = grow(w.lam, L), grow(w.grad, L), grow(w.step, L), grow(w.trial, L)
 	w.hess, w.chol = grow(w.hess, L*L), grow(w.chol, L*L)
 }
@@ -56,6 +56,11 @@ func (w *Dual) Solve(logq, dev []float64, L int, lam0, p []float64) (lam []float
 }
 
 // solve is Solve with an iteration budget.
+//
+// Each iteration makes one pass over the grid for the gradient and the
+// Hessian, one for the step's shift of every log-weight, and one per trial
+// point of the line search; trial points move along the shifts, so they
+// cost one exponential per grid point and no further products.
 func (w *Dual) solve(logq, dev []float64, L int, lam0, p []float64, maxIter int) (lam []float64, ok bool) {
 	n := len(logq)
 	if len(dev) != n*L || len(p) != n {
@@ -67,25 +72,29 @@ func (w *Dual) solve(logq, dev []float64, L int, lam0, p []float64, maxIter int)
 	} else {
 		clear(w.lam)
 	}
+	for j := range w.a {
+		a := logq[j]
+		for k, d := range dev[j*L : j*L+L] {
+			a += w.lam[k] * d
+		}
+		w.a[j] = a
+	}
+	f := normalize(w.a, w.p)
 	if L == 0 {
-		w.eval(logq, dev, 0, w.lam)
 		copy(p, w.p)
 		return w.lam, true
 	}
 	if !hullContainsZero(dev, n, L) {
 		return w.lam, false
 	}
-	f := w.eval(logq, dev, L, w.lam)
-	ok = false
 	for it := 0; it < maxIter; it++ {
 		w.lastIter = it
-		w.gradient(dev, n, L)
+		w.moments(dev, n, L)
 		gmax := maxAbs(w.grad)
 		if gmax <= dualTol {
 			ok = true
 			break
 		}
-		w.hessian(dev, n, L)
 		if !cholesky(w.hess, w.chol, L) {
 			ok = gmax <= dualAccept
 			break
@@ -104,19 +113,32 @@ func (w *Dual) solve(logq, dev []float64, L int, lam0, p []float64, maxIter int)
 		// Cap the step so no log-probability moves by more than maxLogStep:
 		// at a nearly singular Hessian (a coarse grid) the raw Newton step
 		// is huge and halving it down would cost dozens of evaluations.
+		var big float64
+		for j := 0; j < n; j++ {
+			var s float64
+			for k, d := range dev[j*L : j*L+L] {
+				s += w.step[k] * d
+			}
+			w.shift[j] = s
+			big = math.Max(big, math.Abs(s))
+		}
 		t := 1.0
-		if big := maxShift(dev, w.step, n, L); big > maxLogStep {
+		if big > maxLogStep {
 			t = maxLogStep / big
 		}
 		accepted := false
 		for ls := 0; ls < 40; ls++ {
-			for k := range w.trial {
-				w.trial[k] = w.lam[k] + t*w.step[k]
+			for j, a := range w.a {
+				w.aTry[j] = a + t*w.shift[j]
 			}
-			ft := w.eval(logq, dev, L, w.trial)
+			ft := normalize(w.aTry, w.pTry)
 			if ft <= f+1e-4*t*slope || quadratic {
 				f = ft
-				copy(w.lam, w.trial)
+				w.a, w.aTry = w.aTry, w.a
+				w.p, w.pTry = w.pTry, w.p
+				for k := range w.lam {
+					w.lam[k] += t * w.step[k]
+				}
 				accepted = true
 				break
 			}
@@ -125,8 +147,7 @@ func (w *Dual) solve(logq, dev []float64, L int, lam0, p []float64, maxIter int)
 		if !accepted {
 			// No decrease is possible: either converged to the floating-point
 			// floor or the dual is unbounded below (infeasible target).
-			w.eval(logq, dev, L, w.lam)
-			w.gradient(dev, n, L)
+			w.moments(dev, n, L)
 			ok = maxAbs(w.grad) <= dualAccept
 			break
 		}
@@ -135,49 +156,35 @@ func (w *Dual) solve(logq, dev []float64, L int, lam0, p []float64, maxIter int)
 	return w.lam, ok && allFinite(p)
 }
 
-// eval sets w.p to the normalized probabilities at λ and returns the dual
-// objective log Σ exp(a_j), computed stably around the largest a_j.
-func (w *Dual) eval(logq, dev []float64, L int, lam []float64) float64 {
+// normalize sets p_j = exp(a_j)/Σ exp(a) and returns log Σ exp(a),
+// computed stably around the largest a_j.
+func normalize(a, p []float64) float64 {
 	best := math.Inf(-1)
-	for j := range logq {
-		a := logq[j]
-		row := dev[j*L : j*L+L]
-		for k, d := range row {
-			a += lam[k] * d
-		}
-		w.a[j] = a
-		if a > best {
-			best = a
+	for _, x := range a {
+		if x > best {
+			best = x
 		}
 	}
 	var s float64
-	for j, a := range w.a {
-		e := math.Exp(a - best)
-		w.p[j] = e
+	for j, x := range a {
+		e := math.Exp(x - best)
+		p[j] = e
 		s += e
 	}
 	inv := 1 / s
-	for j := range w.p {
-		w.p[j] *= inv
+	for j := range p {
+		p[j] *= inv
 	}
 	return best + math.Log(s)
 }
 
-// gradient sets w.grad = Σ_j p_j dev_j, the current moment error.
-func (w *Dual) gradient(dev []float64, n, L int) {
+// moments sets w.grad = Σ_j p_j dev_j (the current moment error) and the
+// lower triangle of w.hess = Σ_j p_j dev_j dev_jᵀ − g gᵀ (the covariance of
+// the moment functions under p) in one pass. The uncentred form loses
+// digits only when g is large, far from the optimum, where the Hessian
+// need not be accurate; near it g → 0 and nothing cancels.
+func (w *Dual) moments(dev []float64, n, L int) {
 	clear(w.grad)
-	for j := 0; j < n; j++ {
-		pj := w.p[j]
-		row := dev[j*L : j*L+L]
-		for k, d := range row {
-			w.grad[k] += pj * d
-		}
-	}
-}
-
-// hessian sets w.hess = Σ_j p_j (dev_j − g)(dev_j − g)ᵀ, the covariance of
-// the moment functions under p (centred for accuracy).
-func (w *Dual) hessian(dev []float64, n, L int) {
 	clear(w.hess)
 	for j := 0; j < n; j++ {
 		pj := w.p[j]
@@ -186,10 +193,16 @@ func (w *Dual) hessian(dev []float64, n, L int) {
 		}
 		row := dev[j*L : j*L+L]
 		for r := 0; r < L; r++ {
-			dr := pj * (row[r] - w.grad[r])
+			dr := pj * row[r]
+			w.grad[r] += dr
 			for c := 0; c <= r; c++ {
-				w.hess[r*L+c] += dr * (row[c] - w.grad[c])
+				w.hess[r*L+c] += dr * row[c]
 			}
+		}
+	}
+	for r := 0; r < L; r++ {
+		for c := 0; c <= r; c++ {
+			w.hess[r*L+c] -= w.grad[r] * w.grad[c]
 		}
 	}
 }
@@ -257,19 +270,6 @@ func cholSolve(l []float64, L int, b, x []float64) {
 // far-from-optimum phase, larger ones waste evaluations on overflowing
 // trial points).
 const maxLogStep = 50.0
-
-// maxShift returns max_j |step·dev_j|.
-func maxShift(dev, step []float64, n, L int) float64 {
-	var m float64
-	for j := 0; j < n; j++ {
-		var s float64
-		for k, d := range dev[j*L : j*L+L] {
-			s += step[k] * d
-		}
-		m = math.Max(m, math.Abs(s))
-	}
-	return m
-}
 
 func maxAbs(v []float64) float64 {
 	var m float64

@@ -31,10 +31,6 @@ func powerMomentsFeasible(z, targets []float64) (feasible, decided bool) {
 	moments := make([]float64, L+1) // E z^0..z^L
 	moments[0] = 1
 	copy(moments[1:], targets)
-	scale := 1.0 // size of the largest grid value, for a relative margin
-	for _, v := range z {
-		scale = math.Max(scale, math.Abs(v))
-	}
 	coef := make([]float64, L+1)
 	members := make([]int, 0, L)
 	inside := true
@@ -48,7 +44,7 @@ func powerMomentsFeasible(z, targets []float64) (feasible, decided bool) {
 			if runStart > 0 && last < n-1 && (last-runStart+1)%2 == 1 {
 				return // an interior run of odd length: not a facet
 			}
-			inside = facetAdmits(z, members, moments, coef, scale)
+			inside = facetAdmits(z, members, moments, coef)
 			return
 		}
 		if n-i < L-len(members) {
@@ -74,8 +70,8 @@ func powerMomentsFeasible(z, targets []float64) (feasible, decided bool) {
 }
 
 // facetAdmits reports whether the targets lie strictly on the inner side of
-// the facet through the members.
-func facetAdmits(z []float64, members []int, moments, coef []float64, scale float64) bool {
+// the facet through the members (ascending indices).
+func facetAdmits(z []float64, members []int, moments, coef []float64) bool {
 	// Expand Π (z − z_s) into coefficients coef[0..L].
 	clear(coef)
 	coef[0] = 1
@@ -93,29 +89,22 @@ func facetAdmits(z []float64, members []int, moments, coef []float64, scale floa
 		e += c * moments[k]
 		size += math.Abs(c) * math.Abs(moments[k])
 	}
-	// Sign of P_S on the other points: evaluate at the first non-member.
-	sign := 0.0
-	for j := range z {
-		if !contains(members, j) {
-			v := 1.0
-			for _, s := range members {
-				v *= z[j] - z[s]
-			}
-			sign = math.Copysign(1, v)
+	// On a grid point j outside S, P_S(z_j) has the sign (−1)^m, m the
+	// number of members above j; Gale's condition makes m's parity the same
+	// for every such j, so the first non-member decides.
+	first := 0
+	for k, s := range members {
+		if s != k {
 			break
 		}
+		first = k + 1
 	}
-	_ = scale
+	above := len(members) - first
+	sign := 1.0
+	if above%2 == 1 {
+		sign = -1
+	}
 	// A margin of 1e-12 of the terms' size separates the interior from
 	// targets on the boundary up to rounding.
 	return sign*e > 1e-12*size
-}
-
-func contains(s []int, v int) bool {
-	for _, x := range s {
-		if x == v {
-			return true
-		}
-	}
-	return false
 }
