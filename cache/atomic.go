@@ -13,9 +13,10 @@ import (
 const tempPrefix = ".put-"
 
 // writeAtomic writes data to path through a temporary file in the same
-// folder: write, fsync, close, rename, then fsync the folder so the rename
-// itself survives a crash.
-func writeAtomic(path string, data []byte) error {
+// folder: write, close, rename. With durable set it also fsyncs the file
+// before the rename and the folder after it, so that the entry survives a
+// crash of the machine.
+func writeAtomic(path string, data []byte, durable bool) error {
 	dir := filepath.Dir(path)
 	if err := os.MkdirAll(dir, 0o755); err != nil {
 		return fmt.Errorf("cache: cannot create folder %s: %w", dir, pathErr(err))
@@ -36,8 +37,10 @@ func writeAtomic(path string, data []byte) error {
 	if err := f.Chmod(0o644); err != nil {
 		return fail(err)
 	}
-	if err := f.Sync(); err != nil {
-		return fail(err)
+	if durable {
+		if err := f.Sync(); err != nil {
+			return fail(err)
+		}
 	}
 	if err := f.Close(); err != nil {
 		os.Remove(tmp)
@@ -47,7 +50,10 @@ func writeAtomic(path string, data []byte) error {
 		os.Remove(tmp)
 		return fmt.Errorf("cache: write %s: %w", path, pathErr(err))
 	}
-	return syncDir(dir)
+	if durable {
+		return syncDir(dir)
+	}
+	return nil
 }
 
 // syncDir makes a rename in dir durable. File systems that cannot sync a

@@ -334,3 +334,18 @@ func TestPrune(t *testing.T) {
 		t.Fatal("Prune removed an entry")
 	}
 }
+
+func TestSyncedPut(t *testing.T) {
+	c, _ := Open(t.TempDir())
+	c.Sync = true
+	want := solve(t, 0.7)
+	k := key("synced")
+	if err := c.Put(k, &want); err != nil {
+		t.Fatal(err)
+	}
+	var got solved
+	if hit, err := c.Get(k, &got); !hit || err != nil || !sameBits(got, want) {
+		t.Fatalf("synced entry: hit %v, err %v", hit, err)
+	}
+	leftovers(t, c)
+}

@@ -14,12 +14,14 @@
 // bit-flipped or misplaced file fails the check and reads as a miss with a
 // *DamagedError, so the caller recomputes and overwrites it.
 //
-// Put writes a temporary file in the entry's folder, syncs it, and renames
-// it over the entry. Renaming within one folder is atomic on POSIX file
-// systems and on NFS, so readers see either no entry, an old one, or the
-// new one — never a torn one. Two processes writing the same key write the
-// same bytes (jobs are deterministic), so whichever rename lands last is
-// harmless.
+// Put writes a temporary file in the entry's folder and renames it over the
+// entry. Renaming within one folder is atomic on POSIX file systems and on
+// NFS, so readers see either no entry, an old one, or the new one — never a
+// torn one. Two processes writing the same key write the same bytes (jobs
+// are deterministic), so whichever rename lands last is harmless. Put does
+// not fsync unless Cache.Sync is set: the checksum already turns an entry
+// cut short by a machine crash into a miss, and fsync would cost more than
+// the solve it saves.
 //
 // Values are encoded by a small reflection codec (codec.go) that keeps
 // every float64 bit for bit, including NaN payloads and negative zero, so a
