@@ -165,7 +165,62 @@ func diffRecords(a, b *Record) string {
 			return "baseline: " + d
 		}
 	}
+	if d := diffVector(a.Vector, b.Vector); d != "" {
+		return "vector: " + d
+	}
+	if d := diffVector(a.BaselineVector, b.BaselineVector); d != "" {
+		return "baseline vector: " + d
+	}
 	return ""
+}
+
+// diffVector returns the first difference between two vector diagnostics.
+func diffVector(a, b *VectorDiag) string {
+	switch {
+	case (a == nil) != (b == nil):
+		return "presence"
+	case a == nil:
+		return ""
+	case !sameBits(a.MeanErr, b.MeanErr) || !sameBits(a.CovErr, b.CovErr):
+		return "per-state errors"
+	case !sameBits([]float64{a.WorstMeanErr, a.WorstCovErr, a.StationaryCovErr}, []float64{b.WorstMeanErr, b.WorstCovErr, b.StationaryCovErr}):
+		return "worst errors"
+	case !sameBits(a.TrueMean, b.TrueMean) || !sameBits(a.TrueCov, b.TrueCov):
+		return "true moments"
+	case !sameBits(a.ChainMean, b.ChainMean) || !sameBits(a.ChainCov, b.ChainCov):
+		return "chain moments"
+	}
+	return ""
+}
+
+// vectorSet holds a sweep of two points of an invented two-sector VAR
+// (a made-up firm panel's productivity and demand): maxent chains with a
+// Tauchen baseline and vector diagnostics for both. The second point's
+// primary chain claims no stationary distribution, so that the nulls of
+// the chain's stationary columns are written and read back too.
+func vectorSet(t testing.TB) *Set {
+	t.Helper()
+	s := &Set{Header: Header{Run: "firm-panel", Process: "shocks", Kind: "var", Method: "maxent", Dim: 2, Params: []string{"coef[0][0]"}}}
+	for pt, b00 := range []float64{0.8, 0.9} {
+		p := solver.VAR{Coef: []float64{b00, 0.05, 0.02, 0.7}, Cov: []float64{0.01, 0.002, 0.002, 0.02}}
+		c, err := p.Discretize(solver.Settings{States: 4})
+		if err != nil {
+			t.Fatal(err)
+		}
+		b, err := p.Discretize(solver.Settings{States: 3, Method: solver.Tauchen})
+		if err != nil {
+			t.Fatal(err)
+		}
+		vc, vb := solver.DiagnoseVector(c, p), solver.DiagnoseVector(b, p)
+		dc, db := solver.Diagnose(c, p), solver.Diagnose(b, p)
+		r := Record{Point: pt, Params: map[string]float64{"coef[0][0]": b00}, SpecHash: fmt.Sprintf("%064x", pt+7),
+			Spec: []byte(`{"kind":"var"}`), Chain: c, Diag: dc, Baseline: &db, Vector: NewVectorDiag(&vc), BaselineVector: NewVectorDiag(&vb)}
+		if pt == 1 {
+			r.Vector.ChainMean, r.Vector.ChainCov, r.Vector.StationaryCovErr = nil, nil, 0
+		}
+		s.Records = append(s.Records, r)
+	}
+	return s
 }
 
 // readFile returns a file's bytes.

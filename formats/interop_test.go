@@ -50,8 +50,9 @@ type interopFile struct {
 }
 
 // TestInteropDuckDBArrow writes a sweep of AR(1) chains (ρ = 0.9, 0.5,
-// σ = 0.1, maximum entropy, 9 states) and a life-cycle chain in both
-// formats, then reads them with DuckDB (Parquet) and apache-arrow (Arrow
+// σ = 0.1, maximum entropy, 9 states), a life-cycle chain and a VAR sweep
+// with vector diagnostics (vectorSet: nulls among the vector columns) in
+// both formats, then reads them with DuckDB (Parquet) and apache-arrow (Arrow
 // IPC) through interop/check.mjs, which checks metadata keys, probabilities
 // in [0, 1], row sums within 1e-12, and recomputes every content hash from
 // the values those readers return with its own implementation of the
@@ -74,7 +75,7 @@ func TestInteropDuckDBArrow(t *testing.T) {
 	dir := t.TempDir()
 	want := map[string]File{}
 	var args []string
-	for _, s := range []*Set{set, lifeCycleSet(t)} {
+	for _, s := range []*Set{set, lifeCycleSet(t), vectorSet(t)} {
 		for _, f := range []Format{Parquet, Arrow} {
 			res, err := Write(dir, s, Options{Format: f})
 			if err != nil {

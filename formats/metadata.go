@@ -12,8 +12,9 @@ import (
 )
 
 // FormatVersion is the version of the layout described in docs/FORMATS.md.
-// It changes whenever a column or metadata key changes meaning.
-const FormatVersion = "1"
+// It changes whenever a column or metadata key changes meaning. Version 2
+// added the vector columns of the diagnostics and summary tables.
+const FormatVersion = "2"
 
 // Key/value metadata keys carried by every file (Parquet key/value
 // metadata; Arrow IPC schema metadata).

@@ -56,6 +56,11 @@ type Record struct {
 	// Baseline optionally compares a baseline method's chain on the same
 	// number of states with the true process.
 	Baseline *solver.Diagnostics
+	// Vector optionally compares Chain with a vector process as a whole
+	// (conditional mean vectors and covariance matrices, stationary
+	// covariance); BaselineVector likewise for the baseline chain, and
+	// requires Baseline. Nil for univariate processes and terminal ages.
+	Vector, BaselineVector *VectorDiag
 }
 
 // Set is a whole output in memory: a header and its records in (Point, Age)

@@ -332,6 +332,9 @@ func (r *Reader) readAge(rec *Record) error {
 	// states[0] and states[1] are the primary and baseline state counts
 	// the summary rows give.
 	var states [2]int
+	// vectors[0] and vectors[1] are the primary and baseline vector
+	// diagnostics the summary rows give (nil: none).
+	var vectors [2]*VectorDiag
 	readSummary := func(baseline bool) (*solver.Diagnostics, int32, bool, error) {
 		if here, err := r.at(TableSummary, point, age); err != nil || !here {
 			return nil, 0, false, err
@@ -339,11 +342,15 @@ func (r *Reader) readAge(rec *Record) error {
 		if su.boolean(2) != baseline {
 			return nil, 0, false, nil
 		}
+		v, err := vectorSummaryFrom(su, 22, dim)
+		if err != nil {
+			return nil, 0, false, r.fail(TableSummary, su, point, age, "%v", err)
+		}
 		d := &solver.Diagnostics{Method: su.str(3), Fallbacks: int(su.i32(6))}
 		if baseline {
-			states[1] = int(su.i32(4))
+			states[1], vectors[1] = int(su.i32(4)), v
 		} else {
-			states[0] = int(su.i32(4))
+			states[0], vectors[0] = int(su.i32(4)), v
 		}
 		d.Chain = summaryFrom(su, 7)
 		d.True = summaryFrom(su, 12)
@@ -376,9 +383,10 @@ func (r *Reader) readAge(rec *Record) error {
 
 	// diagnostics: the primary chain's states, then the baseline's
 	dg := r.cur[TableDiagnostics]
-	readDiag := func(d *solver.Diagnostics, baseline bool) error {
+	readDiag := func(d *solver.Diagnostics, v *VectorDiag, baseline bool) error {
 		var stat []float64
 		var nulls int
+		first := 6 + dim
 		for {
 			if here, err := r.at(TableDiagnostics, point, age); err != nil {
 				return err
@@ -400,11 +408,18 @@ func (r *Reader) readAge(rec *Record) error {
 				stat = append(stat, dg.f64(4+dim))
 			}
 			sc.Matched = int(dg.i32(5 + dim))
-			first := 6 + dim
 			sc.Chain = momentsFrom(dg, first)
 			sc.True = momentsFrom(dg, first+4)
 			sc.AbsErr = momentsFrom(dg, first+8)
 			sc.RelErr = momentsFrom(dg, first+12)
+			if nm, nc := dg.null(first+16), dg.null(first+17); nm != (v == nil) || nc != (v == nil) {
+				return r.fail(TableDiagnostics, dg, point, age, "vector columns %s and %s are null where the summary says %s",
+					ColVecMeanErr, ColVecCovErr, map[bool]string{true: "they are absent", false: "they are present"}[v == nil])
+			}
+			if v != nil {
+				v.MeanErr = append(v.MeanErr, dg.f64(first+16))
+				v.CovErr = append(v.CovErr, dg.f64(first+17))
+			}
 			d.States = append(d.States, sc)
 			dg.advance()
 		}
@@ -414,7 +429,7 @@ func (r *Reader) readAge(rec *Record) error {
 		}
 		return nil
 	}
-	if err := readDiag(d, false); err != nil {
+	if err := readDiag(d, vectors[0], false); err != nil {
 		return err
 	}
 	if len(d.States) != n || states[0] != n {
@@ -422,16 +437,57 @@ func (r *Reader) readAge(rec *Record) error {
 	}
 	d.Stationary = stationary
 	if hasBase {
-		if err := readDiag(base, true); err != nil {
+		if err := readDiag(base, vectors[1], true); err != nil {
 			return err
 		}
 		if len(base.States) != states[1] {
 			return r.fail(TableDiagnostics, dg, point, age, "has %d rows for the baseline chain, the summary says %d states", len(base.States), states[1])
 		}
-		rec.Baseline = base
+		rec.Baseline, rec.BaselineVector = base, vectors[1]
 	}
-	rec.Chain, rec.Diag = c, *d
+	rec.Chain, rec.Diag, rec.Vector = c, *d, vectors[0]
 	return nil
+}
+
+// vectorSummaryFrom reads the vector columns of a summary row from column
+// col on: nil when they are null (a univariate chain).
+func vectorSummaryFrom(c *cursor, col, dim int) (*VectorDiag, error) {
+	if c.null(col) {
+		for k := 0; k < summaryVecColumns(dim); k++ {
+			if !c.null(col + k) {
+				return nil, fmt.Errorf("%s is null but other vector columns are not", ColWorstVecMeanErr)
+			}
+		}
+		return nil, nil
+	}
+	v := &VectorDiag{WorstMeanErr: c.f64(col)}
+	if c.null(col + 1) {
+		return nil, fmt.Errorf("%s is null beside a value of %s", ColWorstVecCovErr, ColWorstVecMeanErr)
+	}
+	v.WorstCovErr = c.f64(col + 1)
+	hasChain := !c.null(col + 2)
+	if hasChain {
+		v.StationaryCovErr = c.f64(col + 2)
+	}
+	at := col + 3
+	for g, grp := range vectorGroups(v, dim) {
+		chain := g%2 == 1
+		vals := make([]float64, grp.n)
+		for k := range vals {
+			null := c.null(at)
+			if null != (chain && !hasChain) {
+				return nil, fmt.Errorf("%s is null where %s is %s", c.rec.Schema().Field(at).Name, ColStationaryCovErr, map[bool]string{true: "given", false: "null"}[hasChain])
+			}
+			if !null {
+				vals[k] = c.f64(at)
+			}
+			at++
+		}
+		if !chain || hasChain {
+			*grp.vals = vals
+		}
+	}
+	return v, nil
 }
 
 // allOrNone returns v, or nil when every entry was null; a column that is

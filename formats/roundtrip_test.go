@@ -24,6 +24,8 @@ func TestRoundTrip(t *testing.T) {
 		{"small-batches", func(t testing.TB) *Set { return sweepSet(t, 3, 2, 9) }, 10},
 		{"two-dimensional", productSet, 0},
 		{"age-varying", lifeCycleSet, 0},
+		{"vector", vectorSet, 0},
+		{"vector-small-batches", vectorSet, 7},
 	}
 	for _, tc := range cases {
 		for _, f := range []Format{Parquet, Arrow} {

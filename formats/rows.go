@@ -49,16 +49,16 @@ func appendStates(t *tableWriter, r *Record, dim int) error {
 func momentValues(m solver.Moments) [4]float64 { return [4]float64{m.Mean, m.Var, m.Skew, m.Kurt} }
 
 func appendDiagnostics(t *tableWriter, r *Record, dim int) error {
-	if err := appendDiagnosticRows(t, r, &r.Diag, false, dim); err != nil {
+	if err := appendDiagnosticRows(t, r, &r.Diag, r.Vector, false, dim); err != nil {
 		return err
 	}
 	if r.Baseline != nil {
-		return appendDiagnosticRows(t, r, r.Baseline, true, dim)
+		return appendDiagnosticRows(t, r, r.Baseline, r.BaselineVector, true, dim)
 	}
 	return nil
 }
 
-func appendDiagnosticRows(t *tableWriter, r *Record, d *solver.Diagnostics, baseline bool, dim int) error {
+func appendDiagnosticRows(t *tableWriter, r *Record, d *solver.Diagnostics, v *VectorDiag, baseline bool, dim int) error {
 	point, age, base, state := t.i32(0), t.i32(1), t.boolean(2), t.i32(3)
 	stat, matched := t.f64(4+dim), t.i32(5+dim)
 	first := 6 + dim
@@ -73,9 +73,16 @@ func appendDiagnosticRows(t *tableWriter, r *Record, d *solver.Diagnostics, base
 		appendNullable(stat, d.Stationary, i)
 		matched.Append(int32(s.Matched))
 		for g, m := range []solver.Moments{s.Chain, s.True, s.AbsErr, s.RelErr} {
-			for k, v := range momentValues(m) {
-				t.f64(first + 4*g + k).Append(v)
+			for k, x := range momentValues(m) {
+				t.f64(first + 4*g + k).Append(x)
 			}
+		}
+		if v == nil {
+			t.f64(first + 16).AppendNull()
+			t.f64(first + 17).AppendNull()
+		} else {
+			t.f64(first + 16).Append(v.MeanErr[i])
+			t.f64(first + 17).Append(v.CovErr[i])
 		}
 		if err := t.endRow(); err != nil {
 			return err
@@ -88,17 +95,17 @@ func summaryValues(s solver.Summary) [5]float64 {
 	return [5]float64{s.Mean, s.SD, s.Skew, s.Kurt, s.Autocorr}
 }
 
-func appendSummary(t *tableWriter, r *Record) error {
-	if err := appendSummaryRow(t, r, &r.Diag, false); err != nil {
+func appendSummary(t *tableWriter, r *Record, dim int) error {
+	if err := appendSummaryRow(t, r, &r.Diag, r.Vector, false, dim); err != nil {
 		return err
 	}
 	if r.Baseline != nil {
-		return appendSummaryRow(t, r, r.Baseline, true)
+		return appendSummaryRow(t, r, r.Baseline, r.BaselineVector, true, dim)
 	}
 	return nil
 }
 
-func appendSummaryRow(t *tableWriter, r *Record, d *solver.Diagnostics, baseline bool) error {
+func appendSummaryRow(t *tableWriter, r *Record, d *solver.Diagnostics, v *VectorDiag, baseline bool, dim int) error {
 	t.i32(0).Append(int32(r.Point))
 	t.i32(1).Append(int32(r.Age))
 	t.boolean(2).Append(baseline)
@@ -126,7 +133,47 @@ func appendSummaryRow(t *tableWriter, r *Record, d *solver.Diagnostics, baseline
 	} else {
 		t.str(col).Append(d.StationaryErr)
 	}
+	appendVectorSummary(t, col+1, v, dim)
 	return t.endRow()
+}
+
+// appendVectorSummary appends the vector columns of a summary row from
+// column col on, all null when v is nil (docs/FORMATS.md).
+func appendVectorSummary(t *tableWriter, col int, v *VectorDiag, dim int) {
+	if v == nil {
+		for k := 0; k < summaryVecColumns(dim); k++ {
+			t.f64(col + k).AppendNull()
+		}
+		return
+	}
+	var statErr []float64 // nil (null) when the chain has no stationary distribution
+	if v.ChainCov != nil {
+		statErr = []float64{v.StationaryCovErr}
+	}
+	t.f64(col).Append(v.WorstMeanErr)
+	t.f64(col + 1).Append(v.WorstCovErr)
+	appendNullable(t.f64(col+2), statErr, 0)
+	col += 3
+	for _, g := range vectorGroups(v, dim) {
+		for k := 0; k < g.n; k++ {
+			appendNullable(t.f64(col), *g.vals, k)
+			col++
+		}
+	}
+}
+
+// vectorGroup is one block of summary vector columns: a slice of v and its
+// length in dimension d.
+type vectorGroup struct {
+	vals *[]float64
+	n    int
+}
+
+// vectorGroups lists the mean and covariance blocks of the summary vector
+// columns in column order: true means, chain means, true covariance,
+// chain covariance.
+func vectorGroups(v *VectorDiag, dim int) []vectorGroup {
+	return []vectorGroup{{&v.TrueMean, dim}, {&v.ChainMean, dim}, {&v.TrueCov, dim * dim}, {&v.ChainCov, dim * dim}}
 }
 
 // pointRow is the points-table row of one finished sweep point.

@@ -88,6 +88,7 @@ func schemaFor(table string, dim int, params []string) *arrow.Schema {
 				fs = append(fs, field(m+suffix, f64, false))
 			}
 		}
+		fs = append(fs, field(ColVecMeanErr, f64, true), field(ColVecCovErr, f64, true))
 	case TableSummary:
 		fs = []arrow.Field{field(ColPoint, i32, false), field(ColAge, i32, false),
 			field(ColBaseline, boolean, false), field(ColMethod, str, false),
@@ -101,6 +102,19 @@ func schemaFor(table string, dim int, params []string) *arrow.Schema {
 			fs = append(fs, field("worst_"+m+"_err_scaled", f64, false))
 		}
 		fs = append(fs, field("stationary_error", str, true))
+		fs = append(fs, field(ColWorstVecMeanErr, f64, true), field(ColWorstVecCovErr, f64, true), field(ColStationaryCovErr, f64, true))
+		for _, prefix := range []string{"true", "chain"} {
+			for k := 0; k < dim; k++ {
+				fs = append(fs, field(MeanColumn(prefix, k), f64, true))
+			}
+		}
+		for _, prefix := range []string{"true", "chain"} {
+			for k := 0; k < dim; k++ {
+				for l := 0; l < dim; l++ {
+					fs = append(fs, field(CovColumn(prefix, k, l), f64, true))
+				}
+			}
+		}
 	default:
 		panic("formats: unknown table " + table)
 	}

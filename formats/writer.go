@@ -172,8 +172,10 @@ func (w *Writer) check(r *Record) error {
 		return bad("grid has %d values, want %d", len(c.Grid), n*c.Dim)
 	case c.Transition != nil && len(c.Transition) != n*n:
 		return bad("transition has %d entries, want %d", len(c.Transition), n*n)
-	case c.Transition == nil && (len(r.Diag.States) != 0 || r.Baseline != nil):
+	case c.Transition == nil && (len(r.Diag.States) != 0 || r.Baseline != nil || r.Vector != nil):
 		return bad("a terminal age (no transition) has no diagnostics")
+	case r.BaselineVector != nil && r.Baseline == nil:
+		return bad("baseline vector diagnostics without baseline diagnostics")
 	case len(c.Matched) != n:
 		return bad("matched has %d entries, want %d", len(c.Matched), n)
 	case r.Initial != nil && len(r.Initial) != n:
@@ -187,6 +189,16 @@ func (w *Writer) check(r *Record) error {
 	if r.Baseline != nil {
 		if err := checkDiag(r.Baseline, len(r.Baseline.States), w.h.Dim); err != nil {
 			return bad("baseline diagnostics: %v", err)
+		}
+	}
+	if r.Vector != nil {
+		if err := r.Vector.check(n, w.h.Dim); err != nil {
+			return bad("vector diagnostics: %v", err)
+		}
+	}
+	if r.BaselineVector != nil {
+		if err := r.BaselineVector.check(len(r.Baseline.States), w.h.Dim); err != nil {
+			return bad("baseline vector diagnostics: %v", err)
 		}
 	}
 	if len(r.Params) != len(w.h.Params) {
@@ -273,7 +285,7 @@ func (w *Writer) Append(r Record) error {
 		func() error { return appendTransitions(w.tables[TableTransitions], &r) },
 		func() error { return appendStates(w.tables[TableStates], &r, w.h.Dim) },
 		func() error { return appendDiagnostics(w.tables[TableDiagnostics], &r, w.h.Dim) },
-		func() error { return appendSummary(w.tables[TableSummary], &r) },
+		func() error { return appendSummary(w.tables[TableSummary], &r, w.h.Dim) },
 	}
 	if w.terminal {
 		steps = steps[1:2]
