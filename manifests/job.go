@@ -1,6 +1,7 @@
 package manifests
 
 import (
+	"errors"
 	"fmt"
 	"sort"
 
@@ -32,10 +33,25 @@ type Job struct {
 	spec *processSpec
 }
 
+// AgeModel is a process whose chain changes with age (kind lifecycle): one
+// transition matrix per move between consecutive ages.
+type AgeModel interface {
+	DiscretizeAges(solver.Settings) (*solver.AgeChain, error)
+	// DiagnoseAges compares each transition of a with the truth: entry t
+	// holds the conditional moments of the move from age t to age t+1 in
+	// every age-t state, and as unconditional moments those of the
+	// marginal law at age t+1 (Autocorr: Corr(z_t, z_{t+1})); Stationary
+	// is nil.
+	DiagnoseAges(a *solver.AgeChain) []solver.Diagnostics
+}
+
 // Problem is a job's input to the solver: the process, how to discretize
 // it, and the baseline method its diagnostics compare against.
 type Problem struct {
-	Model    Model
+	// Model is the process of a time-invariant kind; nil for a life cycle.
+	Model Model
+	// AgeModel is the process of kind lifecycle; nil for the other kinds.
+	AgeModel AgeModel
 	Settings solver.Settings
 	// Baseline holds the comparison settings; nil when the process asks
 	// for no comparison (compare: none).
@@ -48,7 +64,12 @@ func (j Job) Build() (Problem, error) {
 	if j.spec == nil {
 		return Problem{}, fmt.Errorf("manifests: job %s/%d was not made by Parse or ParseSpec", j.Process, j.Point)
 	}
-	p := Problem{Model: j.spec.spec.model(), Settings: j.spec.settings}
+	p := Problem{Settings: j.spec.settings}
+	if ak, ok := j.spec.spec.(ageKind); ok {
+		p.AgeModel = ak.ageModel()
+	} else {
+		p.Model = j.spec.spec.model()
+	}
 	if j.spec.baseline != nil {
 		b := *j.spec.baseline
 		p.Baseline = &b
@@ -56,8 +77,17 @@ func (j Job) Build() (Problem, error) {
 	return p, nil
 }
 
-// Chain discretizes the process with the job's settings.
-func (p Problem) Chain() (*solver.Chain, error) { return p.Model.Discretize(p.Settings) }
+// errAgeModel is returned for a single chain of a life-cycle process.
+var errAgeModel = errors.New("manifests: a life-cycle process has one chain per age: use Solve or AgeModel")
+
+// Chain discretizes the process with the job's settings. A life-cycle
+// process has no single chain: see AgeModel.
+func (p Problem) Chain() (*solver.Chain, error) {
+	if p.Model == nil {
+		return nil, errAgeModel
+	}
+	return p.Model.Discretize(p.Settings)
+}
 
 // BaselineChain discretizes the process with the baseline method; it
 // returns nil and no error when there is no baseline.
@@ -65,28 +95,100 @@ func (p Problem) BaselineChain() (*solver.Chain, error) {
 	if p.Baseline == nil {
 		return nil, nil
 	}
+	if p.Model == nil {
+		return nil, errAgeModel
+	}
 	return p.Model.Discretize(*p.Baseline)
 }
 
-// Truth returns the exact moments the chains are judged against.
+// Truth returns the exact moments the chains are judged against (for
+// vector processes, of the first component); nil for a life cycle.
 func (p Problem) Truth() solver.Truth { return p.Model }
 
 // Solution is a solved job: the chain, its diagnostics and, when the job
-// has a baseline, the baseline chain and its diagnostics.
+// has a baseline, the baseline chain and its diagnostics. A life-cycle job
+// fills the Ages fields instead of Chain, Diagnostics, Baseline and
+// BaselineDiagnostics. All fields are plain data (the cache stores them).
 type Solution struct {
 	Chain               *solver.Chain
 	Diagnostics         solver.Diagnostics
 	Baseline            *solver.Chain
 	BaselineDiagnostics *solver.Diagnostics
+
+	// Vector and BaselineVector compare the chains with a vector process
+	// (kinds var, sv, product) as a whole: conditional mean vectors and
+	// covariance matrices, stationary covariances. Diagnostics still
+	// compares the first component. Nil for univariate kinds.
+	Vector, BaselineVector *solver.VectorDiagnostics
+
+	// Ages is the chain of a life-cycle process and AgeDiagnostics the
+	// comparison of each of its transitions with the truth (see
+	// AgeModel.DiagnoseAges); BaselineAges and BaselineAgeDiagnostics the
+	// same for the baseline method. Nil for time-invariant kinds.
+	Ages                   *solver.AgeChain
+	AgeDiagnostics         []solver.Diagnostics
+	BaselineAges           *solver.AgeChain
+	BaselineAgeDiagnostics []solver.Diagnostics
+}
+
+// Method returns the method of the primary chain (of every age for a life
+// cycle).
+func (s Solution) Method() solver.Method {
+	if s.Ages != nil {
+		return s.Ages.Method
+	}
+	return s.Chain.Method
+}
+
+// Dim returns the dimension of the state vector.
+func (s Solution) Dim() int {
+	if s.Ages != nil {
+		return 1
+	}
+	return s.Chain.Dim
+}
+
+// States returns the number of states of the chain (for a life cycle,
+// summed over the ages that have a transition).
+func (s Solution) States() int {
+	if s.Ages == nil {
+		return s.Chain.States()
+	}
+	var n int
+	for _, c := range s.Ages.Ages {
+		n += c.States()
+	}
+	return n
+}
+
+// Fallbacks counts the states that matched fewer moments than requested
+// (for a life cycle, over every age).
+func (s Solution) Fallbacks() int {
+	if s.Ages == nil {
+		return s.Chain.Fallbacks()
+	}
+	var n int
+	for _, c := range s.Ages.Ages {
+		n += c.Fallbacks()
+	}
+	return n
 }
 
 // Solve builds both chains and their diagnostics.
 func (p Problem) Solve() (Solution, error) {
+	if p.AgeModel != nil {
+		return p.solveAges()
+	}
 	c, err := p.Chain()
 	if err != nil {
 		return Solution{}, err
 	}
 	s := Solution{Chain: c, Diagnostics: solver.Diagnose(c, p.Model)}
+	vt, vector := p.Model.(solver.VectorTruth)
+	if vector {
+		v := solver.DiagnoseVector(c, vt)
+		s.Vector = &v
+	}
 	if p.Baseline != nil {
 		b, err := p.BaselineChain()
 		if err != nil {
@@ -94,6 +196,26 @@ func (p Problem) Solve() (Solution, error) {
 		}
 		d := solver.Diagnose(b, p.Model)
 		s.Baseline, s.BaselineDiagnostics = b, &d
+		if vector {
+			v := solver.DiagnoseVector(b, vt)
+			s.BaselineVector = &v
+		}
+	}
+	return s, nil
+}
+
+func (p Problem) solveAges() (Solution, error) {
+	a, err := p.AgeModel.DiscretizeAges(p.Settings)
+	if err != nil {
+		return Solution{}, err
+	}
+	s := Solution{Ages: a, AgeDiagnostics: p.AgeModel.DiagnoseAges(a)}
+	if p.Baseline != nil {
+		b, err := p.AgeModel.DiscretizeAges(*p.Baseline)
+		if err != nil {
+			return Solution{}, fmt.Errorf("baseline %s: %w", p.Baseline.Method, err)
+		}
+		s.BaselineAges, s.BaselineAgeDiagnostics = b, p.AgeModel.DiagnoseAges(b)
 	}
 	return s, nil
 }

@@ -86,3 +86,42 @@ func lookupKind(name string) (kindInfo, bool) {
 
 // Kinds lists the process kinds a manifest may use.
 func Kinds() []string { return kindNames() }
+
+// Optional interfaces a kindSpec may implement for what the common keys
+// cannot express.
+
+// settingsKind adds the kind's own fields to the solver settings once the
+// common keys are checked (the VAR's grid axes).
+type settingsKind interface {
+	settings(s *solver.Settings)
+}
+
+// momentDefaulter gives the number of moments maxent matches when the
+// manifest sets none (a VAR: 2, means and covariances); without it the
+// default is 4, or fewer when the law lacks them.
+type momentDefaulter interface {
+	defaultMoments() int
+}
+
+// compositeKind marks a kind whose components carry their own settings
+// (product): the common settings keys do not apply to it, it has no
+// baseline, and its canonical spec has no method or states of its own.
+type compositeKind interface {
+	composite()
+}
+
+// ageKind marks a kind whose chain changes with age (lifecycle): Build
+// sets Problem.AgeModel instead of Problem.Model.
+type ageKind interface {
+	ageModel() AgeModel
+}
+
+// stateCounter gives the number of states of the kind's chain for the
+// checked settings, when that is not simply the states key (a VAR has
+// states per axis). Valid after check passed.
+type stateCounter interface {
+	chainStates(s solver.Settings) int
+}
+
+// componentKinds are the kinds a product may combine.
+var componentKinds = []string{"ar1", "iid", "sv", "var"}

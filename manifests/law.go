@@ -5,6 +5,8 @@ import (
 	"strconv"
 	"strings"
 
+	"go.yaml.in/yaml/v3"
+
 	"gridstage/solver"
 )
 
@@ -135,11 +137,18 @@ func decodeLaw(m *mapping, key string, families []family, optional bool) *law {
 		m.missing(key, "a mapping with law: one of "+joinNames(names))
 		return nil
 	}
-	sub := m.d.mapping(n, m.field(key), "a mapping with law: one of "+joinNames(names))
+	return m.d.decodeLawNode(n, m.field(key), families)
+}
+
+// decodeLawNode reads the law held by node n (a mapping with law: NAME)
+// at the field path path.
+func (d *decoder) decodeLawNode(n *yaml.Node, path string, families []family) *law {
+	names := familyNames(families)
+	sub := d.mapping(n, path, "a mapping with law: one of "+joinNames(names))
 	if sub == nil {
 		return nil
 	}
-	l := &law{at: m.d.at(n, m.field(key))}
+	l := &law{at: d.at(n, path)}
 	name := sub.choice("law", names)
 	if !name.set {
 		if !sub.has("law") {

@@ -213,7 +213,7 @@ func (d *decoder) decodeManifest(root *yaml.Node) *Manifest {
 		byName := map[string]*processSpec{}
 		for i, item := range list.Content {
 			path := joinIndex("processes", i)
-			p := d.decodeProcess(item, path, true)
+			p := d.decodeProcess(item, path, roleEntry)
 			if p == nil {
 				continue
 			}
@@ -274,7 +274,7 @@ func ParseSpec(canonical []byte) (Job, error) {
 	if root == nil {
 		return Job{}, d.r.err()
 	}
-	p := d.decodeProcess(root, "", false)
+	p := d.decodeProcess(root, "", roleSpec)
 	if p == nil || d.r.failed() {
 		return Job{}, d.r.err()
 	}

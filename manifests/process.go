@@ -19,9 +19,24 @@ var namePattern = regexp.MustCompile(`^[A-Za-z0-9][A-Za-z0-9._-]{0,63}$`)
 
 const nameWant = "a name of 1 to 64 letters, digits, '.', '_' or '-', starting with a letter or digit"
 
+// processRole says where a process mapping appears.
+type processRole int
+
+const (
+	// roleEntry is an entry of the manifest's processes: it has a name
+	// and may have a sweep.
+	roleEntry processRole = iota
+	// roleSpec is a canonical spec read back: no name, no sweep.
+	roleSpec
+	// roleComponent is a component of a product: no name, no sweep, no
+	// baseline, and only the kinds in componentKinds.
+	roleComponent
+)
+
 // processSpec is one process as written, or as set for one sweep point.
 type processSpec struct {
 	at                     loc // the process mapping
+	role                   processRole
 	name, kind             str
 	method, grid, compare  str
 	states, moments, width num
@@ -34,14 +49,16 @@ type processSpec struct {
 	baseline *solver.Settings
 }
 
-// decodeProcess reads processes[i]. It returns nil if the entry is not a
-// mapping. needName is false for a canonical spec, which has no name.
-func (d *decoder) decodeProcess(n *yaml.Node, path string, needName bool) *processSpec {
+// decodeProcess reads processes[i] (or a canonical spec, or a component
+// of a product, as role says). It returns nil if the entry is not a
+// mapping.
+func (d *decoder) decodeProcess(n *yaml.Node, path string, role processRole) *processSpec {
 	m := d.mapping(n, path, "a mapping describing a process")
 	if m == nil {
 		return nil
 	}
-	p := &processSpec{at: d.at(m.node, path)}
+	needName := role == roleEntry
+	p := &processSpec{at: d.at(m.node, path), role: role}
 	if needName {
 		p.name = m.text("name", nameWant)
 		if !p.name.set && !m.has("name") {
@@ -61,6 +78,10 @@ func (d *decoder) decodeProcess(n *yaml.Node, path string, needName bool) *proce
 	p.width = m.number("width")
 	p.floden = m.boolean("floden")
 	p.compare = m.choice("compare", append(solver.MethodNames(), "none"))
+	if p.kind.set && role == roleComponent && !contains(componentKinds, p.kind.v) {
+		d.r.add(p.kind.at, ErrRule, "kind %s cannot be a component of a product: want %s", p.kind.v, strings.Join(componentKinds, ", "))
+		p.kind.set, p.kind.bad = false, true
+	}
 	if !p.kind.set {
 		// Without a kind the other keys cannot be judged; mark them known
 		// so that only the kind is reported.
@@ -80,9 +101,12 @@ func (d *decoder) decodeProcess(n *yaml.Node, path string, needName bool) *proce
 	p.spec = info.new()
 	p.spec.decode(m)
 	if sn := m.get("sweep"); sn != nil {
-		if !needName {
+		switch role {
+		case roleSpec:
 			d.r.add(d.at(sn, m.field("sweep")), ErrUnknown, "a canonical spec has no sweep")
-		} else {
+		case roleComponent:
+			d.r.add(d.at(sn, m.field("sweep")), ErrUnknown, "a component has no sweep of its own: sweep the product's parameters (components[0].rho, …)")
+		default:
 			p.sweep = d.decodeSweep(sn, m.field("sweep"), p)
 		}
 	}
@@ -136,6 +160,9 @@ func (p *processSpec) check(r *reporter) bool {
 		// Already reported; rules that depend on them would only add noise.
 		return false
 	}
+	if _, composite := p.spec.(compositeKind); composite {
+		return p.checkComposite(r, ok)
+	}
 
 	methods := p.spec.methods()
 	method := methods[0]
@@ -170,7 +197,11 @@ func (p *processSpec) check(r *reporter) bool {
 		}
 	} else if maxent && ok {
 		limit, _ := p.spec.momentLimit()
-		p.moments.v = float64(min(4, limit))
+		def := 4
+		if md, has := p.spec.(momentDefaulter); has {
+			def = md.defaultMoments()
+		}
+		p.moments.v = float64(min(def, limit))
 	}
 
 	grid := solver.GridEven
@@ -211,6 +242,11 @@ func (p *processSpec) check(r *reporter) bool {
 	var base solver.Method
 	hasBase := false
 	switch {
+	case p.role == roleComponent:
+		if p.compare.set && p.compare.v != "none" {
+			r.add(p.compare.at, ErrRule, "a component has no baseline of its own: want none, or leave compare out")
+			ok = false
+		}
 	case p.compare.set && p.compare.v == "none":
 	case p.compare.set:
 		base, _ = solver.ParseMethod(p.compare.v)
@@ -238,10 +274,60 @@ func (p *processSpec) check(r *reporter) bool {
 	if maxent {
 		p.settings.Moments = int(p.moments.v)
 	}
+	if sk, has := p.spec.(settingsKind); has {
+		sk.settings(&p.settings)
+	}
 	if hasBase {
 		p.baseline = &solver.Settings{States: int(p.states.v), Method: base}
 	}
 	return true
+}
+
+// checkComposite checks a kind whose components carry their own settings:
+// none of the common settings keys applies, and there is no baseline.
+// kindOK is the result of the kind's own check.
+func (p *processSpec) checkComposite(r *reporter, kindOK bool) bool {
+	ok := kindOK
+	why := fmt.Sprintf("does not apply to kind %s: each component sets its own", p.kind.v)
+	for _, at := range []struct {
+		set bool
+		at  loc
+	}{{p.method.set, p.method.at}, {p.states.set || p.states.bad, p.states.at}, {p.moments.set || p.moments.bad, p.moments.at},
+		{p.grid.set, p.grid.at}, {p.width.set || p.width.bad, p.width.at}, {p.floden.set, p.floden.at}} {
+		if at.set {
+			r.add(at.at, ErrRule, "%s", why)
+			ok = false
+		}
+	}
+	if p.compare.set && p.compare.v != "none" {
+		r.add(p.compare.at, ErrRule, "kind %s has no baseline: want none, or leave compare out", p.kind.v)
+		ok = false
+	}
+	ok = ok && p.spec.rules(r, p)
+	if !ok {
+		return false
+	}
+	p.settings = solver.Settings{}
+	return true
+}
+
+// chosenMethod is the method the process asks for (its kind's default when
+// it names none). Valid once the method key decoded without error.
+func (p *processSpec) chosenMethod() solver.Method {
+	if p.method.set {
+		m, _ := solver.ParseMethod(p.method.v)
+		return m
+	}
+	return p.spec.methods()[0]
+}
+
+// chainStates returns the number of states of the process's chain. Valid
+// after check passed.
+func (p *processSpec) chainStates() int {
+	if sc, ok := p.spec.(stateCounter); ok {
+		return sc.chainStates(p.settings)
+	}
+	return p.settings.States
 }
 
 func containsMethod(list []solver.Method, m solver.Method) bool {
@@ -264,6 +350,11 @@ func methodList(list []solver.Method) string {
 // canonicalSpec returns the job's canonical spec object: the fields that
 // affect numbers, with every default filled in. Valid after check.
 func (p *processSpec) canonicalSpec() object {
+	if _, composite := p.spec.(compositeKind); composite {
+		o := object{"kind": p.kind.v, "compare": "none"}
+		p.spec.canonical(o)
+		return o
+	}
 	s := p.settings
 	o := object{"kind": p.kind.v, "method": s.Method.String(), "states": s.States}
 	switch s.Method {

@@ -1,0 +1,172 @@
+package manifests
+
+import (
+	"fmt"
+	"strings"
+
+	"gridstage/solver"
+)
+
+func init() {
+	registerKind(kindInfo{name: "product", keys: []string{"components"}, new: func() kindSpec { return &productSpec{} }})
+}
+
+// productSpec combines independent processes into one chain (solver.Product):
+// components lists them, each a process entry without name, sweep or
+// baseline, of kind ar1, iid, sv or var, with its own settings. The state
+// vector concatenates the components' vectors, the first component's
+// first, and states are numbered with the last component varying fastest.
+type productSpec struct {
+	at    loc // the components list
+	parts []*processSpec
+	bad   bool
+}
+
+const componentsWant = "a list of at least two processes (each with kind ar1, iid, sv or var and its own settings)"
+
+func (s *productSpec) decode(m *mapping) {
+	list, ok := m.list("components", componentsWant)
+	if !ok {
+		s.bad = m.has("components")
+		return
+	}
+	path := m.field("components")
+	s.at = m.d.at(list, path)
+	if len(list.Content) < 2 {
+		m.d.r.add(s.at, ErrRange, "the list has %d process: want %s", len(list.Content), componentsWant)
+		s.bad = true
+	}
+	for i, item := range list.Content {
+		p := m.d.decodeProcess(item, joinIndex(path, i), roleComponent)
+		if p == nil || p.spec == nil {
+			s.bad = true
+			continue
+		}
+		s.parts = append(s.parts, p)
+	}
+}
+
+func (s *productSpec) clone() kindSpec {
+	c := *s
+	c.parts = make([]*processSpec, len(s.parts))
+	for i, p := range s.parts {
+		c.parts[i] = p.clone()
+	}
+	return &c
+}
+
+func (s *productSpec) params(add func(string, *num)) {
+	for i, p := range s.parts {
+		names, refs := p.params()
+		for _, name := range names {
+			add(joinIndex("components", i)+"."+name, refs[name])
+		}
+	}
+}
+
+func (s *productSpec) check(r *reporter, at loc) bool {
+	if s.bad {
+		return false
+	}
+	if s.parts == nil {
+		r.add(loc{pos: at.pos, path: joinKey(at.path, "components")}, ErrMissing, "missing: want %s", componentsWant)
+		return false
+	}
+	ok := true
+	for _, p := range s.parts {
+		ok = p.check(r) && ok
+	}
+	if !ok {
+		return false
+	}
+	total := 1
+	var sizes []string
+	for _, p := range s.parts {
+		n := p.chainStates()
+		sizes = append(sizes, fmt.Sprint(n))
+		total *= n
+		if total > maxTotalStates {
+			break
+		}
+	}
+	if total > maxTotalStates {
+		r.add(s.at, ErrRange, "the components' chains have %s states: their product exceeds %d, want at most %d states in all",
+			strings.Join(sizes, " × "), maxTotalStates, maxTotalStates)
+		return false
+	}
+	return true
+}
+
+func (s *productSpec) composite() {}
+
+// The common settings keys do not apply to a product (see compositeKind);
+// these methods answer for the check's sake only.
+func (s *productSpec) methods() []solver.Method                            { return []solver.Method{solver.MaxEnt} }
+func (s *productSpec) baselines() []solver.Method                          { return nil }
+func (s *productSpec) defaultBaseline(solver.Method) (solver.Method, bool) { return 0, false }
+func (s *productSpec) momentLimit() (int, string)                          { return 8, "" }
+func (s *productSpec) rules(*reporter, *processSpec) bool                  { return true }
+
+func (s *productSpec) canonical(o object) {
+	list := make([]any, len(s.parts))
+	for i, p := range s.parts {
+		list[i] = p.canonicalSpec()
+	}
+	o["components"] = list
+}
+
+func (s *productSpec) model() Model {
+	m := productModel{}
+	for _, p := range s.parts {
+		part := p.spec.model()
+		m.Parts = append(m.Parts, part)
+		m.Settings = append(m.Settings, p.settings)
+		vt, ok := part.(solver.VectorTruth)
+		if !ok {
+			vt = solver.AsVector(part)
+		}
+		m.truth = append(m.truth, vt)
+	}
+	return m
+}
+
+// productModel discretizes each component with its own settings and
+// combines the chains with solver.Product. Its Truth is the first
+// component's (the univariate diagnostics look at the first coordinate);
+// as a VectorTruth it is solver.Independent over the components.
+type productModel struct {
+	Parts    []Model
+	Settings []solver.Settings
+	truth    solver.Independent
+}
+
+var _ solver.VectorTruth = productModel{}
+
+// Discretize ignores s: every component has its own settings.
+func (m productModel) Discretize(solver.Settings) (*solver.Chain, error) {
+	chains := make([]*solver.Chain, len(m.Parts))
+	for i, p := range m.Parts {
+		c, err := p.Discretize(m.Settings[i])
+		if err != nil {
+			return nil, fmt.Errorf("components[%d]: %w", i, err)
+		}
+		chains[i] = c
+	}
+	return solver.Product(chains...), nil
+}
+
+// Conditional returns the first component's conditional moments.
+func (m productModel) Conditional(x []float64) solver.Moments {
+	return m.Parts[0].Conditional(x[:m.truth[0].Dim()])
+}
+
+// Unconditional returns the first component's stationary moments.
+func (m productModel) Unconditional() solver.Summary { return m.Parts[0].Unconditional() }
+
+func (m productModel) Dim() int { return m.truth.Dim() }
+
+func (m productModel) VectorConditional(x []float64) solver.VectorMoments {
+	return m.truth.VectorConditional(x)
+}
+
+func (m productModel) VectorUnconditional() solver.VectorSummary { return m.truth.VectorUnconditional() }
