@@ -143,10 +143,10 @@ func Run(ctx context.Context, m *manifests.Manifest, opt Options) (*Result, erro
 			return nil
 		}
 		rec.Status = runner.Done.String()
-		rec.Fallbacks = v.sol.Chain.Fallbacks()
+		rec.Fallbacks = v.sol.Fallbacks()
 		if rec.Fallbacks > 0 {
 			log.Debug("states fell back to fewer moments", "process", job.Process, "point", job.Point,
-				"states", rec.Fallbacks, "of", v.sol.Chain.States())
+				"states", rec.Fallbacks, "of", v.sol.States())
 		}
 		hash, err := sets.append(job, v.sol)
 		if err != nil {

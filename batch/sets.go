@@ -6,6 +6,7 @@ import (
 
 	"gridstage/formats"
 	"gridstage/manifests"
+	"gridstage/solver"
 )
 
 // setWriter streams solved jobs into one output set per process. Jobs arrive
@@ -33,8 +34,8 @@ func (s *setWriter) append(job manifests.Job, sol manifests.Solution) (string, e
 	}
 	w := s.open[job.Process]
 	if w == nil {
-		h := formats.Header{Run: s.m.Run, Process: job.Process, Kind: job.Kind, Method: sol.Chain.Method.String(),
-			Dim: sol.Chain.Dim, Params: sweptNames(s.m, job.Process), ManifestHash: s.m.Hash}
+		h := formats.Header{Run: s.m.Run, Process: job.Process, Kind: job.Kind, Method: sol.Method().String(),
+			Dim: sol.Dim(), Params: sweptNames(s.m, job.Process), ManifestHash: s.m.Hash}
 		var err error
 		if w, err = formats.Create(s.dir, h, formats.Options{Format: s.format}); err != nil {
 			return "", fmt.Errorf("batch: %s: %w", job.Process, err)
@@ -51,12 +52,39 @@ func (s *setWriter) append(job manifests.Job, sol manifests.Solution) (string, e
 	return formats.ChainHash(recs), nil
 }
 
-// records turns a solved job into the records of its output set.
+// records turns a solved job into the records of its output set: one
+// record for a time-invariant chain; for a life cycle one per age, the
+// initial distribution on age 0 and the terminal age (its grid only) last.
 func records(job manifests.Job, sol manifests.Solution) []formats.Record {
-	return []formats.Record{{
-		Point: job.Point, Params: paramMap(job.Params), SpecHash: job.SpecHash, Spec: job.Canonical,
-		Chain: sol.Chain, Diag: sol.Diagnostics, Baseline: sol.BaselineDiagnostics,
-	}}
+	base := formats.Record{Point: job.Point, Params: paramMap(job.Params), SpecHash: job.SpecHash, Spec: job.Canonical}
+	if sol.Ages == nil {
+		r := base
+		r.Chain, r.Diag, r.Baseline = sol.Chain, sol.Diagnostics, sol.BaselineDiagnostics
+		if sol.Vector != nil {
+			r.Vector = formats.NewVectorDiag(sol.Vector)
+		}
+		if sol.BaselineVector != nil {
+			r.BaselineVector = formats.NewVectorDiag(sol.BaselineVector)
+		}
+		return []formats.Record{r}
+	}
+	a := sol.Ages
+	out := make([]formats.Record, 0, len(a.Ages)+1)
+	for t, c := range a.Ages {
+		r := base
+		r.Age, r.Chain, r.Diag = t, c, sol.AgeDiagnostics[t]
+		if t == 0 {
+			r.Initial = a.Initial
+		}
+		if sol.BaselineAgeDiagnostics != nil {
+			r.Baseline = &sol.BaselineAgeDiagnostics[t]
+		}
+		out = append(out, r)
+	}
+	final := base
+	final.Age = len(a.Ages)
+	final.Chain = &solver.Chain{Dim: 1, Grid: a.Final, Method: a.Method, Matched: make([]int, len(a.Final))}
+	return append(out, final)
 }
 
 // fail drops a process's set: one of its jobs failed.
