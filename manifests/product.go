@@ -169,4 +169,6 @@ func (m productModel) VectorConditional(x []float64) solver.VectorMoments {
 	return m.truth.VectorConditional(x)
 }
 
-func (m productModel) VectorUnconditional() solver.VectorSummary { return m.truth.VectorUnconditional() }
+func (m productModel) VectorUnconditional() solver.VectorSummary {
+	return m.truth.VectorUnconditional()
+}
