@@ -1,0 +1,120 @@
+package bench
+
+import (
+	"context"
+	"fmt"
+	"path/filepath"
+	"testing"
+
+	"gridstage/batch"
+	"gridstage/cache"
+	"gridstage/manifests"
+	"gridstage/runner"
+)
+
+// load writes and loads a sweep manifest.
+func load(b *testing.B, s Sweep) *manifests.Manifest {
+	b.Helper()
+	path, err := s.Write(b.TempDir())
+	if err != nil {
+		b.Fatal(err)
+	}
+	m, err := manifests.Load(path)
+	if err != nil {
+		b.Fatal(err)
+	}
+	return m
+}
+
+var sweep10k = Sweep{Points: 10000, States: 21, Moments: 4, Compare: "none", Seed: 1}
+
+// benchSolve times solving the sweep's jobs one after another, without a
+// pool, a cache or files.
+func benchSolve(b *testing.B, s Sweep) {
+	m := load(b, s)
+	b.ResetTimer()
+	for i := 0; i < b.N; i++ {
+		for _, j := range m.Jobs {
+			p, err := j.Build()
+			if err != nil {
+				b.Fatal(err)
+			}
+			if _, err := p.Solve(); err != nil {
+				b.Fatal(err)
+			}
+		}
+	}
+	b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(b.N*len(m.Jobs))/1e3, "µs/job")
+}
+
+// benchPool times solving the sweep on the worker pool with a sink that
+// keeps nothing: the pool's own scaling, without Parquet writing.
+func benchPool(b *testing.B, s Sweep, workers int) {
+	m := load(b, s)
+	work := func(_ context.Context, i int) (manifests.Solution, error) {
+		p, err := m.Jobs[i].Build()
+		if err != nil {
+			return manifests.Solution{}, err
+		}
+		return p.Solve()
+	}
+	drop := func(int, manifests.Solution, error) error { return nil }
+	b.ResetTimer()
+	for i := 0; i < b.N; i++ {
+		if _, err := runner.Run(context.Background(), len(m.Jobs), runner.Options{Workers: workers}, work, drop); err != nil {
+			b.Fatal(err)
+		}
+	}
+}
+
+// cacheMode says how a benchmark run uses the cache.
+type cacheMode int
+
+const (
+	noCache   cacheMode = iota
+	coldCache           // a fresh, empty cache each run: solve and store
+	warmCache           // a cache filled before timing: read only
+)
+
+// benchRun times gridstage run's engine end to end: manifest jobs through
+// the worker pool (and cache) into Parquet files.
+func benchRun(b *testing.B, s Sweep, workers int, mode cacheMode) {
+	m := load(b, s)
+	root := b.TempDir()
+	var c *cache.Cache
+	if mode == warmCache {
+		var err error
+		if c, err = cache.Open(filepath.Join(root, "cache")); err != nil {
+			b.Fatal(err)
+		}
+		if _, err := batch.Run(context.Background(), m, batch.Options{Out: filepath.Join(root, "fill"), Cache: c}); err != nil {
+			b.Fatal(err)
+		}
+	}
+	b.ResetTimer()
+	for i := 0; i < b.N; i++ {
+		if mode == coldCache {
+			b.StopTimer()
+			var err error
+			if c, err = cache.Open(filepath.Join(root, fmt.Sprint("cold", i))); err != nil {
+				b.Fatal(err)
+			}
+			b.StartTimer()
+		}
+		res, err := batch.Run(context.Background(), m, batch.Options{Out: filepath.Join(root, fmt.Sprint("out", i)), Workers: workers, Cache: c})
+		if err != nil {
+			b.Fatal(err)
+		}
+		if mode == warmCache && res.Solved != 0 {
+			b.Fatalf("warm run solved %d jobs", res.Solved)
+		}
+	}
+}
+
+func BenchmarkSolve10k(b *testing.B)        { benchSolve(b, sweep10k) }
+func BenchmarkPool10kWorkers1(b *testing.B) { benchPool(b, sweep10k, 1) }
+func BenchmarkPool10kWorkers2(b *testing.B) { benchPool(b, sweep10k, 2) }
+func BenchmarkRun10kWorkers1(b *testing.B)  { benchRun(b, sweep10k, 1, noCache) }
+func BenchmarkRun10kWorkers2(b *testing.B)  { benchRun(b, sweep10k, 2, noCache) }
+func BenchmarkRun10kColdCache(b *testing.B) { benchRun(b, sweep10k, 2, coldCache) }
+func BenchmarkRun10kWarmCache(b *testing.B) { benchRun(b, sweep10k, 2, warmCache) }
