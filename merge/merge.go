@@ -10,9 +10,11 @@
 // chain hashes, and memory does not grow with the number of points.
 //
 // Before writing anything Merge checks that the folders are every shard of
-// one run, each once (their shard stamps), and that the sets agree on
-// their headers; while merging, the formats reader re-checks every chain
-// hash, so a damaged shard file stops the merge.
+// one run, each once (their shard stamps and run records), and that the
+// sets agree on their headers; while merging, the formats reader re-checks
+// every chain hash, so a damaged shard file stops the merge. The merged
+// folder gets the run record of the whole run, as a single-machine run
+// writes it.
 package merge
 
 import (
@@ -52,8 +54,9 @@ func (e *InputError) Error() string {
 }
 
 // Merge combines the shard folders into folder out, which is created if
-// needed and must not be one of them. Files of a set appear in out only
-// when the whole set is written.
+// needed and must not be one of them, and writes there the run record
+// (run.json) of the whole run. Files of a set appear in out only when the
+// whole set is written.
 func Merge(dirs []string, out string) (*Result, error) {
 	n, jobs, err := checkStamps(dirs)
 	if err != nil {
@@ -72,6 +75,11 @@ func Merge(dirs []string, out string) (*Result, error) {
 	if err != nil {
 		return nil, err
 	}
+	// Check the run records before writing anything; the merged record
+	// needs the merged files, so it is built after them.
+	if _, err := mergeRecords(dirs, jobs, nil); err != nil {
+		return nil, err
+	}
 	if err := os.MkdirAll(out, 0o755); err != nil {
 		return nil, fmt.Errorf("merge: cannot create output folder %s: %w", out, err)
 	}
@@ -87,6 +95,13 @@ func Merge(dirs []string, out string) (*Result, error) {
 	}
 	if points != jobs {
 		return nil, &InputError{Problem: fmt.Sprintf("the shards hold %d jobs, their stamps say the run has %d", points, jobs)}
+	}
+	rec, err := mergeRecords(dirs, jobs, res.Sets)
+	if err != nil {
+		return nil, err
+	}
+	if err := writeRecord(out, rec); err != nil {
+		return nil, err
 	}
 	return res, nil
 }

@@ -10,6 +10,7 @@ import (
 	"strings"
 	"testing"
 
+	"gridstage/batch"
 	"gridstage/formats"
 	"gridstage/shard"
 	"gridstage/solver"
@@ -69,10 +70,13 @@ func writeRun(t *testing.T, dir string, s shard.Shard, format formats.Format) ma
 	jobs := runJobs()
 	sets := map[string]*formats.Set{}
 	var order []string
+	rec := &batch.RunRecord{Run: "merge-test", Manifest: "test.yaml", ManifestHash: manifestHash, Tool: "test",
+		Shard: s.String(), Succeeded: true}
 	for i, j := range jobs {
 		if !s.Owns(i) {
 			continue
 		}
+		rec.Jobs = append(rec.Jobs, batch.JobRecord{Index: i, Process: j.process, Point: j.point, Status: "done"})
 		if sets[j.process] == nil {
 			sets[j.process] = &formats.Set{Header: header(j.process)}
 			order = append(order, j.process)
@@ -86,6 +90,9 @@ func writeRun(t *testing.T, dir string, s shard.Shard, format formats.Format) ma
 			t.Fatal(err)
 		}
 		out[p] = r
+	}
+	if err := writeRecord(dir, rec); err != nil {
+		t.Fatal(err)
 	}
 	if !s.Whole() {
 		if err := shard.WriteStamp(dir, s, manifestHash, len(jobs)); err != nil {
@@ -149,6 +156,18 @@ func TestMergeEqualsSingleRun(t *testing.T) {
 				if _, err := formats.Verify(filepath.Join(root, "merged")); err != nil {
 					t.Errorf("merged folder does not verify: %v", err)
 				}
+				rec, err := batch.ReadRecord(filepath.Join(root, "merged"))
+				if err != nil {
+					t.Fatal(err)
+				}
+				if rec.Shard != "1/1" || !rec.Succeeded || len(rec.Jobs) != 9 || len(rec.Files) != 10 {
+					t.Fatalf("merged record: shard %s, succeeded %v, %d jobs, %d files", rec.Shard, rec.Succeeded, len(rec.Jobs), len(rec.Files))
+				}
+				for i, j := range rec.Jobs {
+					if j.Index != i {
+						t.Fatalf("merged record lists job %d at position %d", j.Index, i)
+					}
+				}
 			})
 		}
 	}
@@ -160,6 +179,13 @@ func TestMergeRejectsIncompleteOrMixedShards(t *testing.T) {
 	other := filepath.Join(root, "other")
 	writeRun(t, other, shard.Shard{Index: 2, Count: 4}, formats.Parquet)
 	if err := shard.WriteStamp(other, shard.Shard{Index: 2, Count: 4}, "feedface", 9); err != nil {
+		t.Fatal(err)
+	}
+	failed := filepath.Join(root, "failed")
+	writeRun(t, failed, shard.Shard{Index: 3, Count: 4}, formats.Parquet)
+	rec, _ := batch.ReadRecord(failed)
+	rec.Succeeded = false
+	if err := writeRecord(failed, rec); err != nil {
 		t.Fatal(err)
 	}
 	unstamped := filepath.Join(root, "unfinished")
@@ -176,6 +202,7 @@ func TestMergeRejectsIncompleteOrMixedShards(t *testing.T) {
 		{"twice", []string{dirs[0], dirs[1], dirs[1], dirs[2]}, "is shard 2/4, and so is " + dirs[1]},
 		{"other manifest", []string{dirs[0], other, dirs[2], dirs[3]}, "comes from another manifest"},
 		{"unfinished", []string{dirs[0], dirs[1], dirs[2], unstamped}, "has no shard.json"},
+		{"failed record", []string{dirs[0], dirs[1], failed, dirs[3]}, "did not succeed"},
 		{"output is a shard", dirs, "the output folder is one of the shard folders"},
 	}
 	for _, c := range cases {

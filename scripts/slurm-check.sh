@@ -80,6 +80,11 @@ if ! diff -u "$work/single.hashes" "$work/merged.hashes" >&2; then
   fail "merged output differs from the single-machine run"
 fi
 say "$(wc -l <"$work/merged.hashes") files match"
+# The merged run record lists the same jobs, chain hashes and files as the
+# single-machine run's (file paths aside).
+if ! diff -u <(sed "s|$work/single/||" "$work/single/run.json") <(sed "s|$work/run/||" "$work/run/run.json") >&2; then
+  fail "merged run record differs from the single-machine run's"
+fi
 
 say "re-running against the cache the array tasks filled"
 "$gs" run "$manifest" --out "$work/warm" --cache "$work/cache" >"$work/warm.out" 2>&1 ||

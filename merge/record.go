@@ -1,0 +1,85 @@
+package merge
+
+import (
+	"encoding/json"
+	"fmt"
+	"os"
+	"path/filepath"
+	"sort"
+
+	"gridstage/batch"
+	"gridstage/formats"
+	"gridstage/shard"
+)
+
+// mergeRecords combines the shards' run records into the record of the
+// whole run: every job in manifest order, the merged files, and shard
+// "1/1", as a single-machine run of the manifest records.
+func mergeRecords(dirs []string, jobs int, sets []formats.Result) (*batch.RunRecord, error) {
+	var out *batch.RunRecord
+	for _, d := range dirs {
+		r, err := batch.ReadRecord(d)
+		if err != nil {
+			return nil, &InputError{Dir: d, Problem: "its run record cannot be read: " + err.Error()}
+		}
+		if !r.Succeeded {
+			return nil, &InputError{Dir: d, Problem: "its run record says the shard did not succeed"}
+		}
+		if out == nil {
+			out = &batch.RunRecord{Run: r.Run, Manifest: r.Manifest, ManifestHash: r.ManifestHash, Tool: r.Tool,
+				Shard: shard.All.String(), Succeeded: true}
+		} else if r.ManifestHash != out.ManifestHash {
+			return nil, &InputError{Dir: d, Problem: "its run record names another manifest"}
+		}
+		out.Jobs = append(out.Jobs, r.Jobs...)
+	}
+	sort.Slice(out.Jobs, func(i, j int) bool { return out.Jobs[i].Index < out.Jobs[j].Index })
+	if len(out.Jobs) != jobs {
+		return nil, &InputError{Problem: fmt.Sprintf("the shards' run records list %d jobs, their stamps say %d", len(out.Jobs), jobs)}
+	}
+	for i, j := range out.Jobs {
+		if j.Index != i {
+			return nil, &InputError{Problem: fmt.Sprintf("the shards' run records do not list job %d exactly once", i)}
+		}
+	}
+	for _, s := range sets {
+		for _, f := range s.Files {
+			out.Files = append(out.Files, batch.FileRecord{Path: f.Path, Table: f.Table, Rows: f.Rows, ContentHash: f.ContentHash})
+		}
+	}
+	return out, nil
+}
+
+// writeRecord writes the record as gridstage run does (indented JSON),
+// through a temporary file renamed into place.
+func writeRecord(dir string, r *batch.RunRecord) error {
+	b, err := json.MarshalIndent(r, "", "  ")
+	if err != nil {
+		return err
+	}
+	b = append(b, '\n')
+	path := filepath.Join(dir, batch.RecordFile)
+	f, err := os.CreateTemp(dir, "."+batch.RecordFile+".*")
+	if err != nil {
+		return fmt.Errorf("merge: write %s: %w", path, err)
+	}
+	tmp := f.Name()
+	_, err = f.Write(b)
+	if err == nil {
+		err = f.Chmod(0o644)
+	}
+	if err == nil {
+		err = f.Sync()
+	}
+	if cerr := f.Close(); err == nil {
+		err = cerr
+	}
+	if err == nil {
+		err = os.Rename(tmp, path)
+	}
+	if err != nil {
+		os.Remove(tmp)
+		return fmt.Errorf("merge: write %s: %w", path, err)
+	}
+	return nil
+}
