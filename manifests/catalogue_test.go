@@ -61,6 +61,17 @@ var badManifests = []struct {
 	{"draws-missing-file.yaml", ErrFile},
 	{"manifest-errors.json", ErrType},
 	{"wrong-shapes.yaml", ErrType},
+	{"var-not-stationary.yaml", ErrRange},
+	{"var-cov-not-positive-definite.yaml", ErrRange},
+	{"var-cov-asymmetric.yaml", ErrRule},
+	{"var-ragged-matrix.yaml", ErrType},
+	{"var-mismatched-sizes.yaml", ErrRule},
+	{"var-settings.yaml", ErrRange},
+	{"sv-log-variance.yaml", ErrMissing},
+	{"lifecycle-lengths.yaml", ErrRule},
+	{"lifecycle-innovations.yaml", ErrRule},
+	{"product-components.yaml", ErrRule},
+	{"product-too-many-states.yaml", ErrRange},
 }
 
 // toRoot runs the test from the repository root, so that file names in

@@ -182,6 +182,10 @@ func (m *mapping) matrix(key string) (x *matrix, bad bool) {
 		d.r.add(at, ErrRange, "the matrix has %d rows: want 1 to %d (the largest dimension the solver takes)", len(n.Content), maxMatrixRows)
 		return nil, true
 	}
+	if flatList(n) {
+		d.r.add(at, ErrType, "the value is a flat list of numbers: want %s (rows, not one row-major list)", matrixWant)
+		return nil, true
+	}
 	size := len(n.Content)
 	x = &matrix{at: at}
 	ok := true
@@ -209,6 +213,16 @@ func (m *mapping) matrix(key string) (x *matrix, bad bool) {
 		return nil, true
 	}
 	return x, false
+}
+
+// flatList reports whether every item of the sequence n is a scalar.
+func flatList(n *yaml.Node) bool {
+	for _, item := range n.Content {
+		if resolve(item).Kind != yaml.ScalarNode {
+			return false
+		}
+	}
+	return true
 }
 
 // sizeText writes d×d.

@@ -29,6 +29,11 @@ var goodManifests = []struct {
 	{"testdata/manifests/good/manifest.json", 3, map[string][]string{"income": {"sigma"}}},
 	{"examples/wage-risk.yaml", 17, map[string][]string{"earnings": {"rho", "sigma"}}},
 	{"examples/firm-productivity.yaml", 6, map[string][]string{"productivity": {"rho", "sigma"}}},
+	{"testdata/manifests/good/kinds.yaml", 6 + 1 + 2 + 2 + 1 + 2, map[string][]string{
+		"firm-shocks": {"coef[0][0]", "cov[1][1]"}, "price": {"log_variance.sigma"}, "earnings": {"rho[3]"},
+		"wages": {"components[0].rho"}}},
+	{"examples/lifecycle-earnings.yaml", 1, nil},
+	{"examples/firm-var.yaml", 2, nil},
 }
 
 func loadGood(t *testing.T, file string) *Manifest {

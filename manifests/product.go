@@ -65,14 +65,11 @@ func (s *productSpec) params(add func(string, *num)) {
 }
 
 func (s *productSpec) check(r *reporter, at loc) bool {
-	if s.bad {
-		return false
-	}
-	if s.parts == nil {
+	if s.parts == nil && !s.bad {
 		r.add(loc{pos: at.pos, path: joinKey(at.path, "components")}, ErrMissing, "missing: want %s", componentsWant)
 		return false
 	}
-	ok := true
+	ok := !s.bad
 	for _, p := range s.parts {
 		ok = p.check(r) && ok
 	}

@@ -79,7 +79,8 @@ var schemaCatches = []string{
 	"iid-with-tauchen.yaml", "iid-compare.yaml", "iid-missing-distribution.yaml",
 	"iid-law-parameter.yaml", "sweep-unknown-parameter.yaml",
 	"sweep-range-step-and-count.yaml", "sweep-empty.yaml", "manifest-errors.json",
-	"wrong-shapes.yaml",
+	"wrong-shapes.yaml", "var-ragged-matrix.yaml", "var-settings.yaml", "sv-log-variance.yaml",
+	"lifecycle-lengths.yaml", "lifecycle-innovations.yaml", "product-components.yaml",
 }
 
 func TestSchemaRejectsBadManifests(t *testing.T) {
