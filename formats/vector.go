@@ -18,18 +18,22 @@ type VectorDiag struct {
 	// max_kl |(L⁻¹ (C_chain − C) L⁻ᵀ)_kl| in state i, where m and C are
 	// the true conditional mean and covariance and L is the lower Cholesky
 	// factor of C.
-	MeanErr, CovErr []float64
+	MeanErr []float64 `json:"mean_std_error"`
+	CovErr  []float64 `json:"cov_std_error"`
 	// WorstMeanErr and WorstCovErr are the largest of them over states.
-	WorstMeanErr, WorstCovErr float64
+	WorstMeanErr float64 `json:"worst_mean_std_error"`
+	WorstCovErr  float64 `json:"worst_cov_std_error"`
 	// TrueMean and TrueCov are the process's stationary mean and covariance
 	// (for a VAR, the discrete Lyapunov solution).
-	TrueMean, TrueCov []float64
+	TrueMean []float64 `json:"true_mean"`
+	TrueCov  []float64 `json:"true_cov"`
 	// ChainMean and ChainCov are the chain's, under its stationary
 	// distribution; both nil when the chain has none (a reducible chain).
-	ChainMean, ChainCov []float64
+	ChainMean []float64 `json:"chain_mean"`
+	ChainCov  []float64 `json:"chain_cov"`
 	// StationaryCovErr is max_kl |Σ_chain − Σ|_kl / √(Σ_kk Σ_ll); it is
 	// stored only with ChainCov (0 otherwise).
-	StationaryCovErr float64
+	StationaryCovErr float64 `json:"stationary_cov_std_error"`
 }
 
 // NewVectorDiag returns the part of v that a set keeps. v is not modified.

@@ -4,7 +4,6 @@ import (
 	"encoding/json"
 	"fmt"
 	"io"
-	"math"
 	"strings"
 	"text/tabwriter"
 
@@ -19,6 +18,9 @@ type chainReport struct {
 	Diag         solver.Diagnostics
 	Baseline     *solver.Chain
 	BaselineDiag *solver.Diagnostics
+	// MomentsHeading replaces "unconditional moments" above the table of
+	// the chain's moments (for a life-cycle age, the next age's marginal).
+	MomentsHeading string
 }
 
 // chainJSON is the JSON shape (contract: grid is an array of state vectors,
@@ -85,11 +87,11 @@ func (r chainReport) printText(w io.Writer) error {
 	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)
 	fmt.Fprintln(tw, "state\tlevel\tstationary\tmatched\tmean err\tvar err\tskew err\tkurt err\t")
 	for i, s := range d.States {
-		pi := math.NaN()
+		pi := "-"
 		if d.Stationary != nil {
-			pi = d.Stationary[i]
+			pi = fmt.Sprintf("%.4g", d.Stationary[i])
 		}
-		fmt.Fprintf(tw, "%d\t%.6g\t%.4g\t%d\t%s\t%s\t%s\t%s\t\n", i, s.Level[0], pi, s.Matched,
+		fmt.Fprintf(tw, "%d\t%.6g\t%s\t%d\t%s\t%s\t%s\t%s\t\n", i, s.Level[0], pi, s.Matched,
 			sci(s.RelErr.Mean), sci(s.RelErr.Var), sci(s.RelErr.Skew), sci(s.RelErr.Kurt))
 	}
 	tw.Flush()
@@ -104,7 +106,11 @@ func (r chainReport) printText(w io.Writer) error {
 		fmt.Fprintln(w, strings.Join(cells, " "))
 	}
 
-	fmt.Fprintln(w, "\nunconditional moments")
+	heading := "unconditional moments"
+	if r.MomentsHeading != "" {
+		heading = r.MomentsHeading
+	}
+	fmt.Fprintln(w, "\n"+heading)
 	tw = tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)
 	header := "\ttrue\t" + c.Method.String() + "\t"
 	if r.BaselineDiag != nil {

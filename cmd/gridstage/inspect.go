@@ -42,7 +42,12 @@ PATH is an output folder or any file of a set. Choose the sweep point by
 index (--point) or by swept parameter values (--where rho=0.9,sigma=0.1;
 values match within a relative 1e-12), and the age of a life-cycle chain
 with --age. By default the first point and its first age are shown. When
-a folder holds several processes, name one with --process.`,
+a folder holds several processes, name one with --process.
+
+Vector chains (kinds var, sv, product) show every state's vector and the
+largest standardized errors of its conditional mean vector and covariance
+matrix, and the stationary means and covariances of chain and process. A
+life-cycle age shows the move from its grid to the next age's grid.`,
 		Args: cobra.ExactArgs(1),
 		RunE: func(cmd *cobra.Command, args []string) error {
 			sel := inspectSelection{point: -1, age: -1}
@@ -190,7 +195,16 @@ func inspect(w io.Writer, ref formats.SetRef, sel inspectSelection, asJSON bool)
 			break
 		}
 		if sel.age < 0 || rec.Age == sel.age {
-			return showRecord(w, r, &rec, asJSON)
+			// The next age's grid, where this age's transitions lead.
+			var next *formats.Record
+			if rec.Chain.Transition != nil {
+				if nr, err := r.Next(); err == nil && nr.Point == rec.Point {
+					next = &nr
+				} else if err != nil && err != io.EOF {
+					return err
+				}
+			}
+			return showRecord(w, r, &rec, next, asJSON)
 		}
 	}
 	switch {
@@ -222,15 +236,27 @@ type inspectJSON struct {
 	Matched    []int               `json:"matched"`
 	Diag       *solver.Diagnostics `json:"diagnostics,omitempty"`
 	Baseline   *solver.Diagnostics `json:"baseline_diagnostics,omitempty"`
+	// NextGrid is the grid of the next age, for a life-cycle age: the
+	// columns of the transition matrix are its states.
+	NextGrid       [][]float64         `json:"next_grid,omitempty"`
+	Vector         *formats.VectorDiag `json:"vector_diagnostics,omitempty"`
+	BaselineVector *formats.VectorDiag `json:"baseline_vector_diagnostics,omitempty"`
 }
 
-func showRecord(w io.Writer, r *formats.Reader, rec *formats.Record, asJSON bool) error {
+// showRecord prints one chain; next is the record of the point's next age
+// (nil when there is none).
+func showRecord(w io.Writer, r *formats.Reader, rec *formats.Record, next *formats.Record, asJSON bool) error {
 	c := rec.Chain
 	terminal := c.Transition == nil
+	lifeCycle := next != nil || rec.Age > 0
 	if asJSON {
 		j := inspectJSON{Run: r.Header.Run, Process: r.Header.Process, Kind: r.Header.Kind, Point: rec.Point,
 			Params: rec.Params, Age: rec.Age, SpecHash: rec.SpecHash, Method: c.Method.String(), Moments: c.Moments,
-			Grid: gridRows(c), Transition: [][]float64{}, Initial: rec.Initial, Matched: c.Matched, Baseline: rec.Baseline}
+			Grid: gridRows(c), Transition: [][]float64{}, Initial: rec.Initial, Matched: c.Matched, Baseline: rec.Baseline,
+			Vector: rec.Vector, BaselineVector: rec.BaselineVector}
+		if next != nil {
+			j.NextGrid = gridRows(next.Chain)
+		}
 		if json.Valid(rec.Spec) {
 			j.Spec = rec.Spec
 		}
@@ -258,7 +284,20 @@ func showRecord(w io.Writer, r *formats.Reader, rec *formats.Record, asJSON bool
 		}
 		return nil
 	}
+	if lifeCycle {
+		fmt.Fprintf(w, "life-cycle age %d: moves from the grid of age %d (rows) to the grid of age %d (columns)\n", rec.Age, rec.Age, rec.Age+1)
+		if next != nil {
+			fmt.Fprintf(w, "grid of age %d: %s\n", rec.Age+1, levelList(next.Chain.Grid))
+		}
+		fmt.Fprintln(w)
+	}
+	if c.Dim > 1 || rec.Vector != nil {
+		return printVectorRecord(w, r.Header.Kind, rec)
+	}
 	rep := chainReport{Kind: r.Header.Kind, Chain: c, Diag: rec.Diag}
+	if lifeCycle {
+		rep.MomentsHeading = fmt.Sprintf("marginal moments at age %d (autocorrelation: between ages %d and %d)", rec.Age+1, rec.Age, rec.Age+1)
+	}
 	if rec.Baseline != nil {
 		m, err := solver.ParseMethod(rec.Baseline.Method)
 		if err == nil {
