@@ -26,12 +26,13 @@ type burnsideCase struct {
 	bestWhy        string
 }
 
-// errorFloor is the smallest relative error the check can resolve: the
+// errorFloor is the smallest relative error the check resolves reliably: the
 // closed-form series is a sum of some 700 positive terms and the chain's
-// value a linear solve with condition number about 1/(1−β) = 20, each
-// correct to a few units of 1e-15. Errors below it are printed as "< 1e-14"
-// and count as ties.
-const errorFloor = 1e-14
+// value a linear solve with condition number about 1/(1−β) = 20, so
+// rounding alone moves the error by up to about 1e-13 (it changed from
+// 7.9e-14 to 8.1e-14 when the Newton solver's summation order changed).
+// Errors below it are printed as "< 1e-12" and count as ties.
+const errorFloor = 1e-12
 
 var burnsideCases = []burnsideCase{
 	{
@@ -89,7 +90,7 @@ func burnsideError(t *testing.T, bc burnsideCase, s solver.Settings, exact float
 
 func formatError(e float64) string {
 	if e < errorFloor {
-		return "< 1e-14"
+		return "< 1e-12"
 	}
 	return fmt.Sprintf("%.1e", e)
 }
@@ -104,7 +105,7 @@ func TestBurnsideAccuracy(t *testing.T) {
 	doc.WriteString("Relative error of the price-dividend ratio at the mean state, |v_chain(μ)/v(μ) − 1|, where v_chain solves\n" +
 		"v_i = β Σ_j P_ij exp(θ x_j)(1 + v_j) on the chain (`models.Burnside`) and v(μ) is the closed-form series of\n" +
 		"Burnside (1998), recomputed in the test. Maximum entropy matches 4 conditional moments on a grid of half-width\n" +
-		"√(N−1) unconditional standard deviations; Tauchen uses ±3. Errors below 1e-14 are at the rounding level of\n" +
+		"√(N−1) unconditional standard deviations; Tauchen uses ±3. Errors below 1e-12 are at the rounding level of\n" +
 		"the check and count as ties. Produced by `go test ./models -run BurnsideAccuracy -update`.\n")
 	for _, bc := range burnsideCases {
 		exact := burnsideSeries(t, bc.beta, bc.theta, bc.mu, bc.rho, bc.sigma, bc.mu)
@@ -139,7 +140,7 @@ func TestBurnsideAccuracy(t *testing.T) {
 			}
 			v := fmt.Sprintf("N = %d smallest", n)
 			if len(ties) > 0 {
-				v = fmt.Sprintf("N = %d tied with %s below 1e-14", n, strings.Join(ties, ", "))
+				v = fmt.Sprintf("N = %d tied with %s below 1e-12", n, strings.Join(ties, ", "))
 			}
 			verdicts = append(verdicts, v)
 		}
