@@ -33,6 +33,7 @@ var sweep10k = Sweep{Points: 10000, States: 21, Moments: 4, Compare: "none", See
 func benchSolve(b *testing.B, s Sweep) {
 	m := load(b, s)
 	b.ResetTimer()
+	cpu := startCPU()
 	for i := 0; i < b.N; i++ {
 		for _, j := range m.Jobs {
 			p, err := j.Build()
@@ -44,6 +45,7 @@ func benchSolve(b *testing.B, s Sweep) {
 			}
 		}
 	}
+	cpu.report(b)
 	b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(b.N*len(m.Jobs))/1e3, "µs/job")
 }
 
@@ -60,11 +62,13 @@ func benchPool(b *testing.B, s Sweep, workers int) {
 	}
 	drop := func(int, manifests.Solution, error) error { return nil }
 	b.ResetTimer()
+	cpu := startCPU()
 	for i := 0; i < b.N; i++ {
 		if _, err := runner.Run(context.Background(), len(m.Jobs), runner.Options{Workers: workers}, work, drop); err != nil {
 			b.Fatal(err)
 		}
 	}
+	cpu.report(b)
 }
 
 // cacheMode says how a benchmark run uses the cache.
@@ -92,6 +96,7 @@ func benchRun(b *testing.B, s Sweep, workers int, mode cacheMode) {
 		}
 	}
 	b.ResetTimer()
+	cpu := startCPU()
 	for i := 0; i < b.N; i++ {
 		if mode == coldCache {
 			b.StopTimer()
@@ -109,6 +114,7 @@ func benchRun(b *testing.B, s Sweep, workers int, mode cacheMode) {
 			b.Fatalf("warm run solved %d jobs", res.Solved)
 		}
 	}
+	cpu.report(b)
 }
 
 func BenchmarkSolve10k(b *testing.B)        { benchSolve(b, sweep10k) }
