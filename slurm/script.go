@@ -149,7 +149,7 @@ echo "submitted solve job $solve ({{.Tasks}} tasks) and merge job $merge; merged
 // view is what the templates see.
 type view struct {
 	Plan
-	CPUs                  int
+	CPUs                 int
 	Folder, Logs, Shards string
 }
 
