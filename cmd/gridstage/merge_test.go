@@ -25,50 +25,58 @@ func hashes(t *testing.T, dir string) map[string]string {
 	return out
 }
 
-// TestShardedRunMergesToSingleRun runs the cluster test manifest whole and
-// as three shards sharing a cache, merges the shards, and compares content
-// hashes file by file.
+// TestShardedRunMergesToSingleRun runs a manifest whole and as three shards
+// sharing a cache, merges the shards, and compares content hashes file by
+// file: an AR(1) sweep with a second, single-job process (so one shard has
+// no job of it), and a life-cycle sweep whose points carry several ages.
 func TestShardedRunMergesToSingleRun(t *testing.T) {
-	manifest := filepath.Join("..", "..", "testdata", "slurm", "sweep.yaml")
-	root := t.TempDir()
-	cache := filepath.Join(root, "cache")
-	if code, _, errOut := run(t, "run", manifest, "--out", filepath.Join(root, "single"), "--cache", "off", "--shard", "all"); code != 0 {
-		t.Fatalf("single run: exit %d: %s", code, errOut)
-	}
-	var shards []string
-	for i := 1; i <= 3; i++ {
-		dir := filepath.Join(root, fmt.Sprintf("task-%d", i))
-		if code, _, errOut := run(t, "run", manifest, "--out", dir, "--cache", cache, "--shard", fmt.Sprintf("%d/3", i), "--workers", "2"); code != 0 {
-			t.Fatalf("shard %d: exit %d: %s", i, code, errOut)
-		}
-		shards = append(shards, dir)
-	}
-	merged := filepath.Join(root, "merged")
-	code, out, errOut := run(t, append(append([]string{"merge"}, shards...), "--out", merged)...)
-	if code != 0 {
-		t.Fatalf("merge: exit %d: %s", code, errOut)
-	}
-	if !strings.Contains(out, "merged 3 shards (13 jobs)") {
-		t.Errorf("merge summary: %q", out)
-	}
-	want, got := hashes(t, filepath.Join(root, "single")), hashes(t, merged)
-	if len(want) != 10 || len(got) != len(want) {
-		t.Fatalf("%d files merged, %d in the single run", len(got), len(want))
-	}
-	for name, h := range want {
-		if got[name] != h {
-			t.Errorf("%s: merged content hash %s, single run %s", name, got[name], h)
-		}
-	}
+	for _, c := range []struct {
+		manifest    string
+		jobs, files int
+	}{{"sweep.yaml", 13, 10}, {"lifecycle.yaml", 5, 5}} {
+		t.Run(c.manifest, func(t *testing.T) {
+			manifest := filepath.Join("..", "..", "testdata", "slurm", c.manifest)
+			root := t.TempDir()
+			cache := filepath.Join(root, "cache")
+			if code, _, errOut := run(t, "run", manifest, "--out", filepath.Join(root, "single"), "--cache", "off", "--shard", "all"); code != 0 {
+				t.Fatalf("single run: exit %d: %s", code, errOut)
+			}
+			var shards []string
+			for i := 1; i <= 3; i++ {
+				dir := filepath.Join(root, fmt.Sprintf("task-%d", i))
+				if code, _, errOut := run(t, "run", manifest, "--out", dir, "--cache", cache, "--shard", fmt.Sprintf("%d/3", i), "--workers", "2"); code != 0 {
+					t.Fatalf("shard %d: exit %d: %s", i, code, errOut)
+				}
+				shards = append(shards, dir)
+			}
+			merged := filepath.Join(root, "merged")
+			code, out, errOut := run(t, append(append([]string{"merge"}, shards...), "--out", merged)...)
+			if code != 0 {
+				t.Fatalf("merge: exit %d: %s", code, errOut)
+			}
+			if !strings.Contains(out, fmt.Sprintf("merged 3 shards (%d jobs)", c.jobs)) {
+				t.Errorf("merge summary: %q", out)
+			}
+			want, got := hashes(t, filepath.Join(root, "single")), hashes(t, merged)
+			if len(want) != c.files || len(got) != len(want) {
+				t.Fatalf("%d files merged, %d in the single run, want %d", len(got), len(want), c.files)
+			}
+			for name, h := range want {
+				if got[name] != h {
+					t.Errorf("%s: merged content hash %s, single run %s", name, got[name], h)
+				}
+			}
 
-	// Usage errors exit 2 with one sentence naming the problem.
-	code, _, errOut = run(t, "merge", shards[0], shards[1], "--out", filepath.Join(root, "partial"))
-	if code != exitUsage || !strings.Contains(errOut, "shard 3/3 missing") {
-		t.Errorf("missing shard: exit %d: %s", code, errOut)
-	}
-	code, _, errOut = run(t, "merge", shards[0])
-	if code != exitUsage || !strings.Contains(errOut, "--out is required") {
-		t.Errorf("no --out: exit %d: %s", code, errOut)
+			// Usage errors exit 2 with one sentence naming the problem.
+			code, _, errOut = run(t, "merge", shards[0], shards[1], "--out", filepath.Join(root, "partial"))
+			if code != exitUsage || !strings.Contains(errOut, "shard 3/3 missing") {
+				t.Errorf("missing shard: exit %d: %s", code, errOut)
+			}
+			code, _, errOut = run(t, "merge", shards[0])
+			if code != exitUsage || !strings.Contains(errOut, "--out is required") {
+				t.Errorf("no --out: exit %d: %s", code, errOut)
+			}
+		})
 	}
 }
 
