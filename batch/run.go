@@ -6,7 +6,6 @@ import (
 	"fmt"
 	"log/slog"
 	"os"
-	"path/filepath"
 	"sync/atomic"
 
 	"gridstage/cache"
@@ -90,7 +89,7 @@ func Run(ctx context.Context, m *manifests.Manifest, opt Options) (*Result, erro
 	}}
 	for k, ji := range jobs {
 		j := m.Jobs[ji]
-		res.Record.Jobs[k] = JobRecord{Index: ji, Process: j.Process, Point: j.Point, Params: paramMap(j.Params),
+		res.Record.Jobs[k] = JobRecord{Index: ji, Process: j.Process, Point: j.Point, Params: Params(j.Params),
 			SpecHash: j.SpecHash, Status: runner.NotRun.String()}
 	}
 
@@ -171,16 +170,12 @@ func Run(ctx context.Context, m *manifests.Manifest, opt Options) (*Result, erro
 		res.Sets = written
 		runErr = err
 	}
-	for _, s := range res.Sets {
-		for _, f := range s.Files {
-			res.Record.Files = append(res.Record.Files, FileRecord{Path: filepath.Base(f.Path), Table: f.Table, Rows: f.Rows, ContentHash: f.ContentHash})
-		}
-	}
+	res.Record.Files = FileRecords(res.Sets)
 	if runErr == nil && res.Failed > 0 {
 		runErr = fmt.Errorf("%d of %d jobs failed (see %s)", res.Failed, len(jobs), RecordFile)
 	}
 	res.Record.Succeeded = runErr == nil
-	if err := writeRecord(dir, res.Record); err != nil {
+	if err := WriteRecord(dir, res.Record); err != nil {
 		runErr = errors.Join(runErr, fmt.Errorf("batch: writing run record: %w", err))
 	}
 	if runErr == nil && !sh.Whole() {

@@ -3,8 +3,10 @@ package batch
 import (
 	"bytes"
 	"context"
+	"encoding/json"
 	"os"
 	"path/filepath"
+	"slices"
 	"strings"
 	"testing"
 
@@ -150,5 +152,39 @@ func TestRunCanceledLeavesNothingThatLooksComplete(t *testing.T) {
 	}
 	if _, err := formats.Verify(dir); err != nil {
 		t.Errorf("after the rerun: %v", err)
+	}
+}
+
+// The streamed run record has the bytes json.MarshalIndent gives, with or
+// without jobs and files, and reads back equal.
+func TestWriteRecordMatchesMarshalIndent(t *testing.T) {
+	recs := []*RunRecord{
+		{Run: "r", Manifest: "m.yaml", ManifestHash: "ab", Tool: "t", Shard: "1/1", Jobs: []JobRecord{}, Files: []FileRecord{}},
+		{Run: "r", Manifest: "m.yaml", ManifestHash: "ab", Tool: "t", Shard: "2/3", Succeeded: true,
+			Jobs: []JobRecord{
+				{Index: 0, Process: "p", Point: 0, Params: Params{{Name: "rho", Value: 0.9}, {Name: "sigma", Value: 0.1}}, SpecHash: "s", ChainHash: "c", Status: "done"},
+				{Index: 3, Process: "p", Point: 1, SpecHash: "s2", Status: "failed", Error: "x \"quoted\""},
+			},
+			Files: []FileRecord{{Path: "p.points.parquet", Table: "points", Rows: 2, ContentHash: "h"}}},
+	}
+	for _, r := range recs {
+		dir := t.TempDir()
+		if err := WriteRecord(dir, r); err != nil {
+			t.Fatal(err)
+		}
+		got, _ := os.ReadFile(filepath.Join(dir, RecordFile))
+		want, _ := json.MarshalIndent(r, "", "  ")
+		if want = append(want, '\n'); !bytes.Equal(got, want) {
+			t.Errorf("streamed record differs:\n%s\nwant:\n%s", got, want)
+		}
+		back, err := ReadRecord(dir)
+		if err != nil || len(back.Jobs) != len(r.Jobs) {
+			t.Fatalf("read back: %v", err)
+		}
+		for i := range r.Jobs {
+			if !slices.Equal(back.Jobs[i].Params, r.Jobs[i].Params) {
+				t.Errorf("job %d params %v, want %v", i, back.Jobs[i].Params, r.Jobs[i].Params)
+			}
+		}
 	}
 }

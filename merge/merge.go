@@ -26,6 +26,7 @@ import (
 	"slices"
 	"strings"
 
+	"gridstage/batch"
 	"gridstage/formats"
 	"gridstage/shard"
 )
@@ -100,7 +101,7 @@ func Merge(dirs []string, out string) (*Result, error) {
 	if err != nil {
 		return nil, err
 	}
-	if err := writeRecord(out, rec); err != nil {
+	if err := batch.WriteRecord(out, rec); err != nil {
 		return nil, err
 	}
 	return res, nil

@@ -91,7 +91,7 @@ func writeRun(t *testing.T, dir string, s shard.Shard, format formats.Format) ma
 		}
 		out[p] = r
 	}
-	if err := writeRecord(dir, rec); err != nil {
+	if err := batch.WriteRecord(dir, rec); err != nil {
 		t.Fatal(err)
 	}
 	if !s.Whole() {
@@ -185,7 +185,7 @@ func TestMergeRejectsIncompleteOrMixedShards(t *testing.T) {
 	writeRun(t, failed, shard.Shard{Index: 3, Count: 4}, formats.Parquet)
 	rec, _ := batch.ReadRecord(failed)
 	rec.Succeeded = false
-	if err := writeRecord(failed, rec); err != nil {
+	if err := batch.WriteRecord(failed, rec); err != nil {
 		t.Fatal(err)
 	}
 	unstamped := filepath.Join(root, "unfinished")

@@ -1,10 +1,7 @@
 package merge
 
 import (
-	"encoding/json"
 	"fmt"
-	"os"
-	"path/filepath"
 	"sort"
 
 	"gridstage/batch"
@@ -42,44 +39,6 @@ func mergeRecords(dirs []string, jobs int, sets []formats.Result) (*batch.RunRec
 			return nil, &InputError{Problem: fmt.Sprintf("the shards' run records do not list job %d exactly once", i)}
 		}
 	}
-	for _, s := range sets {
-		for _, f := range s.Files {
-			out.Files = append(out.Files, batch.FileRecord{Path: f.Path, Table: f.Table, Rows: f.Rows, ContentHash: f.ContentHash})
-		}
-	}
+	out.Files = batch.FileRecords(sets)
 	return out, nil
-}
-
-// writeRecord writes the record as gridstage run does (indented JSON),
-// through a temporary file renamed into place.
-func writeRecord(dir string, r *batch.RunRecord) error {
-	b, err := json.MarshalIndent(r, "", "  ")
-	if err != nil {
-		return err
-	}
-	b = append(b, '\n')
-	path := filepath.Join(dir, batch.RecordFile)
-	f, err := os.CreateTemp(dir, "."+batch.RecordFile+".*")
-	if err != nil {
-		return fmt.Errorf("merge: write %s: %w", path, err)
-	}
-	tmp := f.Name()
-	_, err = f.Write(b)
-	if err == nil {
-		err = f.Chmod(0o644)
-	}
-	if err == nil {
-		err = f.Sync()
-	}
-	if cerr := f.Close(); err == nil {
-		err = cerr
-	}
-	if err == nil {
-		err = os.Rename(tmp, path)
-	}
-	if err != nil {
-		os.Remove(tmp)
-		return fmt.Errorf("merge: write %s: %w", path, err)
-	}
-	return nil
 }

@@ -30,7 +30,7 @@ func WriteSets(ctx context.Context, m *manifests.Manifest, dir string) ([]plugin
 		if params[j.Process] == nil {
 			params[j.Process] = map[int]map[string]float64{}
 		}
-		params[j.Process][j.Point] = j.Params
+		params[j.Process][j.Point] = j.Params.Map()
 	}
 	var refs []plugin.ChainRef
 	for _, set := range res.Sets {
