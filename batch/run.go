@@ -6,6 +6,7 @@ import (
 	"fmt"
 	"log/slog"
 	"os"
+	"path/filepath"
 	"sync/atomic"
 
 	"gridstage/cache"
@@ -34,6 +35,8 @@ type Options struct {
 	Logger *slog.Logger
 	// Progress, when non-nil, is called with 1 as each job is delivered.
 	Progress func(n int)
+	// Force rewrites the output even when it is already up to date.
+	Force bool
 }
 
 // Result is what Run did.
@@ -46,6 +49,9 @@ type Result struct {
 	Solved, Cached, Failed int
 	// Sets lists the output sets written, with their files.
 	Sets []formats.Result
+	// UpToDate reports that the output folder already held this run's
+	// complete output, so nothing was solved or written.
+	UpToDate bool
 }
 
 // solved is a job's result as it travels from a worker to the writer.
@@ -83,6 +89,12 @@ func Run(ctx context.Context, m *manifests.Manifest, opt Options) (*Result, erro
 		sh = shard.All
 	}
 	jobs := sh.Jobs(len(m.Jobs))
+	if !opt.Force {
+		if rec := upToDate(dir, m, sh, format); rec != nil {
+			log.Info("output is up to date; nothing to do (use --force to rewrite it)", "folder", dir)
+			return &Result{Dir: dir, Record: rec, UpToDate: true}, nil
+		}
+	}
 	res := &Result{Dir: dir, Record: &RunRecord{
 		Run: m.Run, Manifest: m.File, ManifestHash: m.Hash, Tool: version.Tool, Shard: sh.String(),
 		Jobs: make([]JobRecord, len(jobs)),
@@ -193,4 +205,32 @@ func paramMap(ps []manifests.Param) map[string]float64 {
 		out[p.Name] = p.Value
 	}
 	return out
+}
+
+// upToDate returns the run record in dir when the folder already holds the
+// complete, successful output of this manifest and shard written by this
+// version of the tool in this format, every file it lists still present.
+// The manifest hash covers every job's spec hash, and the spec hash the
+// solver's numeric version, so equal hashes mean equal numbers. It does
+// not re-read the files: `gridstage verify` checks their contents.
+func upToDate(dir string, m *manifests.Manifest, sh shard.Shard, f formats.Format) *RunRecord {
+	rec, err := ReadRecord(dir)
+	if err != nil || !rec.Succeeded || rec.ManifestHash != m.Hash || rec.Tool != version.Tool ||
+		rec.Shard != sh.String() || len(rec.Files) == 0 {
+		return nil
+	}
+	for _, file := range rec.Files {
+		if filepath.Ext(file.Path) != f.Ext() {
+			return nil
+		}
+		if _, err := os.Stat(filepath.Join(dir, file.Path)); err != nil {
+			return nil
+		}
+	}
+	if !sh.Whole() {
+		if _, _, err := shard.ReadStamp(dir); err != nil {
+			return nil
+		}
+	}
+	return rec
 }

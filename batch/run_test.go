@@ -188,3 +188,30 @@ func TestWriteRecordMatchesMarshalIndent(t *testing.T) {
 		}
 	}
 }
+
+// A second run into a folder holding this manifest's complete output does
+// nothing; a missing file or --force makes it write again.
+func TestRunUpToDate(t *testing.T) {
+	m := parse(t, sweepManifest)
+	dir := t.TempDir()
+	if _, err := Run(context.Background(), m, Options{Out: dir}); err != nil {
+		t.Fatal(err)
+	}
+	res, err := Run(context.Background(), m, Options{Out: dir})
+	if err != nil || !res.UpToDate || res.Solved != 0 {
+		t.Fatalf("second run: up to date %v, solved %d, err %v", res.UpToDate, res.Solved, err)
+	}
+	if err := os.Remove(filepath.Join(dir, "returns.states.parquet")); err != nil {
+		t.Fatal(err)
+	}
+	res, err = Run(context.Background(), m, Options{Out: dir})
+	if err != nil || res.UpToDate || res.Solved != len(m.Jobs) {
+		t.Fatalf("after a file was removed: up to date %v, solved %d, err %v", res.UpToDate, res.Solved, err)
+	}
+	if res, err = Run(context.Background(), m, Options{Out: dir, Force: true}); err != nil || res.UpToDate {
+		t.Fatalf("forced run: up to date %v, err %v", res.UpToDate, err)
+	}
+	if _, err := formats.Verify(dir); err != nil {
+		t.Error(err)
+	}
+}

@@ -124,3 +124,31 @@ func BenchmarkRun10kWorkers1(b *testing.B)  { benchRun(b, sweep10k, 1, noCache) 
 func BenchmarkRun10kWorkers2(b *testing.B)  { benchRun(b, sweep10k, 2, noCache) }
 func BenchmarkRun10kColdCache(b *testing.B) { benchRun(b, sweep10k, 2, coldCache) }
 func BenchmarkRun10kWarmCache(b *testing.B) { benchRun(b, sweep10k, 2, warmCache) }
+
+// BenchmarkRun10kRerun times what a user sees re-running the same manifest
+// into the same output folder with a warm cache: the folder's run.json shows
+// the output is up to date, so nothing is solved or written.
+func BenchmarkRun10kRerun(b *testing.B) {
+	m := load(b, sweep10k)
+	root := b.TempDir()
+	c, err := cache.Open(filepath.Join(root, "cache"))
+	if err != nil {
+		b.Fatal(err)
+	}
+	out := filepath.Join(root, "out")
+	if _, err := batch.Run(context.Background(), m, batch.Options{Out: out, Cache: c}); err != nil {
+		b.Fatal(err)
+	}
+	b.ResetTimer()
+	cpu := startCPU()
+	for i := 0; i < b.N; i++ {
+		res, err := batch.Run(context.Background(), m, batch.Options{Out: out, Workers: 2, Cache: c})
+		if err != nil {
+			b.Fatal(err)
+		}
+		if !res.UpToDate || res.Solved != 0 {
+			b.Fatalf("re-run solved %d jobs (up to date: %v)", res.Solved, res.UpToDate)
+		}
+	}
+	cpu.report(b)
+}

@@ -29,6 +29,7 @@ func newRunCmd() *cobra.Command {
 	var (
 		out, format, cacheDir, shardFlag, logFormat string
 		workers                                     int
+		force                                       bool
 	)
 	cmd := &cobra.Command{
 		Use:   "run MANIFEST [--out DIR]",
@@ -39,7 +40,9 @@ summaries and sweep points, plus run.json listing each job with its spec
 hash, chain hash and status. Exit status 0 only if every job succeeded.
 
 Solved jobs are kept in a content-addressed cache (by spec hash), so a
-re-run or a run resumed after a crash solves nothing twice. The cache lives
+re-run or a run resumed after a crash solves nothing twice; when the output
+folder already holds this manifest's complete output (run.json with the same
+manifest hash and tool version), nothing is rewritten unless --force. The cache lives
 in --cache, else $GRIDSTAGE_CACHE, else the user cache folder
 (~/.cache/gridstage); --cache off disables it.
 
@@ -55,7 +58,7 @@ On a Slurm array job the share of jobs is taken from the array variables;
 				}
 				return badInput("%v", err)
 			}
-			opt := batch.Options{Out: out, Workers: workers}
+			opt := batch.Options{Out: out, Workers: workers, Force: force}
 			if cmd.Flags().Changed("format") {
 				f, err := formats.ParseFormat(format)
 				if err != nil {
@@ -113,6 +116,7 @@ On a Slurm array job the share of jobs is taken from the array variables;
 	fs.StringVar(&cacheDir, "cache", "", "cache folder, or off (default: $GRIDSTAGE_CACHE, else the user cache folder)")
 	fs.StringVar(&shardFlag, "shard", "", "run share I of N of the jobs, as I/N (default: from Slurm array variables, else all)")
 	fs.StringVar(&logFormat, "log-format", "text", "log format: text or json")
+	fs.BoolVar(&force, "force", false, "rewrite the output even when run.json says it is up to date")
 	return cmd
 }
 
@@ -132,6 +136,11 @@ func cacheFolder(flag string) string {
 
 func printRunSummary(w io.Writer, m *manifests.Manifest, r *batch.Result, took time.Duration) {
 	jobs := len(r.Record.Jobs)
+	if r.UpToDate {
+		fmt.Fprintf(w, "run %q: %d jobs, output in %s is up to date (same manifest hash and tool version); --force rewrites it\n",
+			m.Run, jobs, r.Dir)
+		return
+	}
 	fmt.Fprintf(w, "run %q: %d jobs (%d solved, %d from cache, %d failed) in %s, shard %s\n",
 		m.Run, jobs, r.Solved, r.Cached, r.Failed, took.Round(time.Millisecond), r.Record.Shard)
 	fallbacks := 0

@@ -15,7 +15,8 @@ import (
 // the cache named by GRIDSTAGE_CACHE when set) into dir and returns one
 // reference per chain, in manifest order.
 func WriteSets(ctx context.Context, m *manifests.Manifest, dir string) ([]plugin.ChainRef, error) {
-	opt := batch.Options{Out: dir}
+	// Force: the references returned below come from the sets written now.
+	opt := batch.Options{Out: dir, Force: true}
 	if d := cache.Dir(""); d != "" {
 		if c, err := cache.Open(d); err == nil {
 			opt.Cache = c
