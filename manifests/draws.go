@@ -197,6 +197,13 @@ func (d *decoder) readCSV(t *drawTable, full string, at loc, path string, names,
 	if !ok {
 		return false
 	}
+	// One path string per column, shared by every row's cells.
+	cellPaths := make([]string, len(cols))
+	for i := range cols {
+		if use[i] {
+			cellPaths[i] = joinKey(path, cols[i])
+		}
+	}
 	badRows := 0
 	for {
 		rec, err := cr.Read()
@@ -218,7 +225,7 @@ func (d *decoder) readCSV(t *drawTable, full string, at loc, path string, names,
 				continue
 			}
 			l := cellAt(i)
-			l.path = joinKey(path, cols[i])
+			l.path = cellPaths[i]
 			text := strings.TrimSpace(cell)
 			v, err := strconv.ParseFloat(text, 64)
 			if err != nil {

@@ -71,10 +71,11 @@ func (d *decoder) readParquet(t *drawTable, full string, at loc, path string, na
 			continue
 		}
 		row := 0
+		cellPath := joinKey(path, cols[c]) // shared by the column's cells
 		for _, chunk := range tbl.Column(c).Data().Chunks() {
 			for k := 0; k < chunk.Len(); k++ {
 				l := cellAt(row, c)
-				l.path = joinKey(path, cols[c])
+				l.path = cellPath
 				v, good := cellValue(chunk, k)
 				if !good {
 					d.r.add(l, ErrType, "column %s holds %s: want numbers without nulls", cols[c], describeCell(chunk, k))

@@ -30,7 +30,39 @@ type Job struct {
 	// SpecHash is the hex SHA-256 over version.Numeric and Canonical.
 	SpecHash string
 
-	spec *processSpec
+	// src rebuilds the job's checked spec when Build asks for it, so that
+	// a large sweep keeps one spec per process, not one per sweep point.
+	src *jobSource
+}
+
+// jobSource is what a job's checked spec is rebuilt from, shared by all
+// the jobs of one process.
+type jobSource struct {
+	// fixed is the checked spec of a process without a sweep; it is only
+	// read once made.
+	fixed *processSpec
+	// written is a swept process as written (never checked itself): each
+	// point clones it, sets the point's values and checks the clone.
+	written *processSpec
+}
+
+// checked returns the job's checked spec: for a sweep point, a fresh copy
+// built and checked exactly as when the manifest was parsed.
+func (j Job) checked() (*processSpec, error) {
+	switch {
+	case j.src == nil:
+		return nil, fmt.Errorf("manifests: job %s/%d was not made by Parse or ParseSpec", j.Process, j.Point)
+	case j.src.fixed != nil:
+		return j.src.fixed, nil
+	}
+	q := j.src.written.clone()
+	q.setPoint(j.Point)
+	r := &reporter{}
+	if !q.check(r) {
+		// The point passed this check when the manifest was parsed.
+		return nil, fmt.Errorf("manifests: job %s/%d no longer checks: %v", j.Process, j.Point, r.err())
+	}
+	return q, nil
 }
 
 // AgeModel is a process whose chain changes with age (kind lifecycle): one
@@ -61,17 +93,18 @@ type Problem struct {
 // Build returns the solver inputs of the job. It fails only for a Job not
 // made by this package.
 func (j Job) Build() (Problem, error) {
-	if j.spec == nil {
-		return Problem{}, fmt.Errorf("manifests: job %s/%d was not made by Parse or ParseSpec", j.Process, j.Point)
+	q, err := j.checked()
+	if err != nil {
+		return Problem{}, err
 	}
-	p := Problem{Settings: j.spec.settings}
-	if ak, ok := j.spec.spec.(ageKind); ok {
+	p := Problem{Settings: q.settings}
+	if ak, ok := q.spec.(ageKind); ok {
 		p.AgeModel = ak.ageModel()
 	} else {
-		p.Model = j.spec.spec.model()
+		p.Model = q.spec.model()
 	}
-	if j.spec.baseline != nil {
-		b := *j.spec.baseline
+	if q.baseline != nil {
+		b := *q.baseline
 		p.Baseline = &b
 	}
 	return p, nil
@@ -221,7 +254,9 @@ func (p Problem) solveAges() (Solution, error) {
 }
 
 // expand turns a checked process into its jobs, one per sweep point,
-// validating every point. It returns nil if any point is invalid.
+// validating every point. It returns nil if any point is invalid. The jobs
+// keep their canonical spec, hash and swept values; the checked spec of a
+// sweep point is rebuilt by Build (see Job.checked).
 func expand(r *reporter, p *processSpec) []Job {
 	if p.spec == nil {
 		return nil
@@ -231,7 +266,7 @@ func expand(r *reporter, p *processSpec) []Job {
 		if !q.check(r) {
 			return nil
 		}
-		return []Job{newJob(q, 0, nil)}
+		return []Job{newJob(q, 0, nil, &jobSource{fixed: q})}
 	}
 	s := p.sweep
 	if s.broken {
@@ -241,41 +276,35 @@ func expand(r *reporter, p *processSpec) []Job {
 	if s.draws != nil {
 		rows = len(s.draws.rows)
 	}
-	cells := 1
+	n := rows
 	for _, a := range s.axes {
-		cells *= len(a.values)
+		n *= len(a.values)
 	}
-	jobs := make([]Job, 0, rows*cells)
+	src := &jobSource{written: p}
+	jobs := make([]Job, 0, n)
+	var flat []Param // backing array of every point's Params
+	var canon slab   // backing arrays of the canonical specs
 	good := true
-	idx := make([]int, len(s.axes))
-	for point := 0; point < rows*cells; point++ {
+	for point := 0; point < n; point++ {
 		q := p.clone()
-		_, refs := q.params()
-		var params []Param
-		set := func(name string, v num) {
-			*refs[name] = v
-			params = append(params, Param{Name: name, Value: v.v})
-		}
-		if s.draws != nil {
-			for c, name := range s.draws.columns {
-				set(name, s.draws.rows[point/cells][c])
-			}
-		}
-		rem := point % cells
-		for k := len(s.axes) - 1; k >= 0; k-- {
-			idx[k] = rem % len(s.axes[k].values)
-			rem /= len(s.axes[k].values)
-		}
-		for k, a := range s.axes {
-			set(a.name, a.values[idx[k]])
-		}
-		sort.Slice(params, func(i, j int) bool { return params[i].Name < params[j].Name })
+		params := q.setPoint(point)
 		if !q.check(r) {
 			good = false
 			continue
 		}
 		if good {
-			jobs = append(jobs, newJob(q, point, params))
+			if flat == nil {
+				flat = make([]Param, 0, n*len(params))
+			}
+			var own []Param
+			if len(params) > 0 {
+				at := len(flat)
+				flat = append(flat, params...)
+				own = flat[at:len(flat):len(flat)]
+			}
+			j := newJob(q, point, own, src)
+			j.Canonical = canon.keep(j.Canonical)
+			jobs = append(jobs, j)
 		}
 	}
 	if !good {
@@ -284,8 +313,68 @@ func expand(r *reporter, p *processSpec) []Job {
 	return jobs
 }
 
-func newJob(q *processSpec, point int, params []Param) Job {
+// setPoint sets the swept parameters of a clone of a swept process to
+// their values at the given point and returns those values, sorted by
+// name.
+func (q *processSpec) setPoint(point int) []Param {
+	s := q.sweep
+	cells := 1
+	for _, a := range s.axes {
+		cells *= len(a.values)
+	}
+	_, refs := q.params()
+	params := make([]Param, 0, len(s.axes)+drawColumns(s.draws))
+	set := func(name string, v num) {
+		*refs[name] = v
+		params = append(params, Param{Name: name, Value: v.v})
+	}
+	if s.draws != nil {
+		for c, name := range s.draws.columns {
+			set(name, s.draws.rows[point/cells][c])
+		}
+	}
+	idx := make([]int, len(s.axes))
+	rem := point % cells
+	for k := len(s.axes) - 1; k >= 0; k-- {
+		idx[k] = rem % len(s.axes[k].values)
+		rem /= len(s.axes[k].values)
+	}
+	for k, a := range s.axes {
+		set(a.name, a.values[idx[k]])
+	}
+	sort.Slice(params, func(i, j int) bool { return params[i].Name < params[j].Name })
+	return params
+}
+
+// slab packs many small byte slices into shared chunks, so that a sweep's
+// canonical specs cost their length, not an allocation each rounded up.
+type slab struct{ chunk []byte }
+
+const slabChunk = 64 << 10
+
+// keep returns a copy of b in the slab, with its capacity cut to its
+// length so that an append to it cannot reach the next one.
+func (s *slab) keep(b []byte) []byte {
+	if len(b) > slabChunk/4 {
+		return append([]byte(nil), b...)
+	}
+	if cap(s.chunk)-len(s.chunk) < len(b) {
+		s.chunk = make([]byte, 0, slabChunk)
+	}
+	at := len(s.chunk)
+	s.chunk = append(s.chunk, b...)
+	return s.chunk[at:len(s.chunk):len(s.chunk)]
+}
+
+func drawColumns(t *drawTable) int {
+	if t == nil {
+		return 0
+	}
+	return len(t.columns)
+}
+
+func newJob(q *processSpec, point int, params []Param, src *jobSource) Job {
 	canon := encodeCanonical(q.canonicalSpec())
 	return Job{Process: q.name.v, Kind: q.kind.v, Point: point, Params: params,
-		Canonical: canon, SpecHash: SpecHash(canon), spec: q}
+		Canonical: canon, SpecHash: SpecHash(canon), src: src}
 }

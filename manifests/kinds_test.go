@@ -216,7 +216,11 @@ func TestSchemaParameterPattern(t *testing.T) {
 	n := 0
 	for _, tc := range goodManifests {
 		for _, j := range loadGood(t, tc.file).Jobs {
-			names, _ := j.spec.params()
+			q, err := j.checked()
+			if err != nil {
+				t.Fatal(err)
+			}
+			names, _ := q.params()
 			for _, name := range names {
 				n++
 				if !re.MatchString(name) {

@@ -282,5 +282,5 @@ func ParseSpec(canonical []byte) (Job, error) {
 	if !q.check(d.r) {
 		return Job{}, d.r.err()
 	}
-	return newJob(q, 0, nil), nil
+	return newJob(q, 0, nil, &jobSource{fixed: q}), nil
 }

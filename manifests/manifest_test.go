@@ -244,8 +244,8 @@ func TestInnovationLaws(t *testing.T) {
 			t.Errorf("%s: skewness %g", j.Process, skew)
 		}
 	}
-	if m.Jobs[1].spec.settings.Moments != 3 {
-		t.Errorf("t law with nu 3.5: moments %d, want the 3 given", m.Jobs[1].spec.settings.Moments)
+	if jobSettings(t, m.Jobs[1]).Moments != 3 {
+		t.Errorf("t law with nu 3.5: moments %d, want the 3 given", jobSettings(t, m.Jobs[1]).Moments)
 	}
 }
 
@@ -299,4 +299,14 @@ func TestParseSpecErrors(t *testing.T) {
 			t.Errorf("ParseSpec(%s):\n got %v\nwant %s", tc.spec, err, tc.want)
 		}
 	}
+}
+
+// jobSettings returns the solver settings Build gives the job.
+func jobSettings(t *testing.T, j Job) solver.Settings {
+	t.Helper()
+	p, err := j.Build()
+	if err != nil {
+		t.Fatal(err)
+	}
+	return p.Settings
 }
