@@ -12,6 +12,7 @@ import (
 	"strings"
 
 	"gridstage/formats"
+	"gridstage/internal/atomicfile"
 	"gridstage/manifests"
 )
 
@@ -120,7 +121,7 @@ func FileRecords(sets []formats.Result) []FileRecord {
 // held as one buffer. The bytes are those of json.MarshalIndent(r, "", "  ")
 // (with empty lists written as [] even when nil).
 func WriteRecord(dir string, r *RunRecord) error {
-	return writeAtomic(filepath.Join(dir, RecordFile), func(w io.Writer) error {
+	return atomicfile.Write(filepath.Join(dir, RecordFile), 0o644, func(w io.Writer) error {
 		head, err := json.MarshalIndent(recordHead{r.Run, r.Manifest, r.ManifestHash, r.Tool, r.Shard, r.Succeeded}, "", "  ")
 		if err != nil {
 			return err
@@ -183,37 +184,4 @@ func ReadRecord(dir string) (*RunRecord, error) {
 		return nil, fmt.Errorf("batch: %s: %w", filepath.Join(dir, RecordFile), err)
 	}
 	return &r, nil
-}
-
-// writeAtomic writes a file through fill into a temporary file in the same
-// folder, syncs it and renames it into place.
-func writeAtomic(path string, fill func(io.Writer) error) error {
-	tmp, err := os.CreateTemp(filepath.Dir(path), "."+filepath.Base(path)+".tmp-*")
-	if err != nil {
-		return err
-	}
-	defer os.Remove(tmp.Name())
-	if err := fill(tmp); err != nil {
-		tmp.Close()
-		return err
-	}
-	if err := tmp.Chmod(0o644); err != nil {
-		tmp.Close()
-		return err
-	}
-	if err := tmp.Sync(); err != nil {
-		tmp.Close()
-		return err
-	}
-	if err := tmp.Close(); err != nil {
-		return err
-	}
-	if err := os.Rename(tmp.Name(), path); err != nil {
-		return err
-	}
-	if d, err := os.Open(filepath.Dir(path)); err == nil {
-		d.Sync()
-		d.Close()
-	}
-	return nil
 }

@@ -6,6 +6,7 @@ import (
 	"os"
 	"path/filepath"
 
+	"gridstage/internal/atomicfile"
 	"gridstage/plugin"
 )
 
@@ -33,27 +34,11 @@ func writeEstimate(path string, f estimateFile) error {
 }
 
 func writeAtomic(path string, b []byte) error {
-	dir := filepath.Dir(path)
-	if err := os.MkdirAll(dir, 0o755); err != nil {
+	if err := os.MkdirAll(filepath.Dir(path), 0o755); err != nil {
 		return fmt.Errorf("pipeline: %w", err)
 	}
-	tmp, err := os.CreateTemp(dir, "."+filepath.Base(path)+".tmp-*")
-	if err != nil {
+	if err := atomicfile.WriteBytes(path, b, 0o644); err != nil {
 		return fmt.Errorf("pipeline: %w", err)
-	}
-	_, err = tmp.Write(b)
-	if err == nil {
-		err = tmp.Sync()
-	}
-	if cerr := tmp.Close(); err == nil {
-		err = cerr
-	}
-	if err == nil {
-		err = os.Rename(tmp.Name(), path)
-	}
-	if err != nil {
-		os.Remove(tmp.Name())
-		return fmt.Errorf("pipeline: write %s: %w", path, err)
 	}
 	return nil
 }

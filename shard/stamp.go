@@ -7,6 +7,8 @@ import (
 	"io/fs"
 	"os"
 	"path/filepath"
+
+	"gridstage/internal/atomicfile"
 )
 
 // StampFile is the name of the file a finished shard run leaves in its
@@ -38,31 +40,8 @@ func WriteStamp(dir string, s Shard, manifestHash string, jobs int) error {
 		return err
 	}
 	b = append(b, '\n')
-	f, err := os.CreateTemp(dir, "."+StampFile+".*")
-	if err != nil {
-		return fmt.Errorf("shard: cannot write the stamp in %s: %w", dir, err)
-	}
-	tmp := f.Name()
-	_, err = f.Write(b)
-	if err == nil {
-		err = f.Chmod(0o644)
-	}
-	if err == nil {
-		err = f.Sync()
-	}
-	if cerr := f.Close(); err == nil {
-		err = cerr
-	}
-	if err == nil {
-		err = os.Rename(tmp, filepath.Join(dir, StampFile))
-	}
-	if err != nil {
-		os.Remove(tmp)
-		return fmt.Errorf("shard: cannot write the stamp in %s: %w", dir, err)
-	}
-	if d, err := os.Open(dir); err == nil {
-		d.Sync()
-		d.Close()
+	if err := atomicfile.WriteBytes(filepath.Join(dir, StampFile), b, 0o644); err != nil {
+		return fmt.Errorf("shard: %w", err)
 	}
 	return nil
 }

@@ -20,6 +20,8 @@ import (
 	"path/filepath"
 	"strings"
 	"text/template"
+
+	"gridstage/internal/atomicfile"
 )
 
 // Plan describes a cluster run. Paths must be absolute: jobs start on
@@ -198,27 +200,8 @@ func Write(p Plan) ([]string, error) {
 }
 
 func writeFile(path string, data []byte) error {
-	f, err := os.CreateTemp(filepath.Dir(path), "."+filepath.Base(path)+".*")
-	if err != nil {
+	if err := atomicfile.WriteBytes(path, data, 0o755); err != nil {
 		return fmt.Errorf("slurm: %w", err)
-	}
-	tmp := f.Name()
-	_, err = f.Write(data)
-	if err == nil {
-		err = f.Chmod(0o755)
-	}
-	if err == nil {
-		err = f.Sync()
-	}
-	if cerr := f.Close(); err == nil {
-		err = cerr
-	}
-	if err == nil {
-		err = os.Rename(tmp, path)
-	}
-	if err != nil {
-		os.Remove(tmp)
-		return fmt.Errorf("slurm: write %s: %w", path, err)
 	}
 	return nil
 }

@@ -11,6 +11,7 @@ import (
 	"github.com/spf13/cobra"
 
 	"gridstage/figures"
+	"gridstage/internal/atomicfile"
 	"gridstage/report"
 )
 
@@ -181,36 +182,8 @@ func safeName(s string) string {
 	}, s)
 }
 
-// writeAtomic writes data to path through a temporary file in the same
-// folder, synced and renamed into place, so a crash never leaves a file
-// that looks complete.
+// writeAtomic writes data to path so a crash never leaves a file that
+// looks complete.
 func writeAtomic(path string, data []byte) error {
-	dir, base := filepath.Split(path)
-	if dir == "" {
-		dir = "."
-	}
-	tmp, err := os.CreateTemp(dir, "."+base+".tmp-*")
-	if err != nil {
-		return fmt.Errorf("cannot write %s: %w", path, err)
-	}
-	defer os.Remove(tmp.Name()) // no-op after a successful rename
-	if _, err := tmp.Write(data); err != nil {
-		tmp.Close()
-		return fmt.Errorf("cannot write %s: %w", path, err)
-	}
-	if err := tmp.Chmod(0o644); err != nil {
-		tmp.Close()
-		return fmt.Errorf("cannot write %s: %w", path, err)
-	}
-	if err := tmp.Sync(); err != nil {
-		tmp.Close()
-		return fmt.Errorf("cannot write %s: %w", path, err)
-	}
-	if err := tmp.Close(); err != nil {
-		return fmt.Errorf("cannot write %s: %w", path, err)
-	}
-	if err := os.Rename(tmp.Name(), path); err != nil {
-		return fmt.Errorf("cannot write %s: %w", path, err)
-	}
-	return nil
+	return atomicfile.WriteBytes(path, data, 0o644)
 }
