@@ -25,17 +25,17 @@ stages:
       - model: burnside
         params: {beta: 0.95, theta: -1.5}
 `
-	s, err := Parse(strings.NewReader(text), "p.yaml", "/work/pipes")
+	s, err := Parse(strings.NewReader(text), "p.yaml", "/srv/pipes")
 	if err != nil {
 		t.Fatal(err)
 	}
-	if s.Manifest != "/work/pipes/m/wages.yaml" || s.Out != "/abs/out" || s.Ledger != "/abs/out/lineage.parquet" {
+	if s.Manifest != "/srv/pipes/m/wages.yaml" || s.Out != "/abs/out" || s.Ledger != "/abs/out/lineage.parquet" {
 		t.Errorf("paths: %s, %s, %s", s.Manifest, s.Out, s.Ledger)
 	}
 	if s.Timeout != 90*time.Second || s.StartTimeout != DefaultStartTimeout || s.Grid != nil {
 		t.Errorf("timeouts %v %v, grid %v", s.Timeout, s.StartTimeout, s.Grid)
 	}
-	if got := s.Stages[0].Command; got[0] != filepath.Join("/work/pipes", "bin/modelstage") || got[1] != "--quiet" {
+	if got := s.Stages[0].Command; got[0] != filepath.Join("/srv/pipes", "bin/modelstage") || got[1] != "--quiet" {
 		t.Errorf("command %v", got)
 	}
 	if s.Stages[1].Command[0] != "python3" {
