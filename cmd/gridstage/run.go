@@ -150,7 +150,7 @@ func printRunSummary(w io.Writer, m *manifests.Manifest, r *batch.Result, took t
 		}
 	}
 	if fallbacks > 0 {
-		fmt.Fprintf(w, "warning: %d jobs have states that matched fewer moments than requested; see the diagnostics tables\n", fallbacks)
+		fmt.Fprintf(w, "warning: in %d of %d jobs some states matched fewer moments than requested (the grid cannot carry them there); `gridstage report` shows which\n", fallbacks, jobs)
 	}
 	for _, s := range r.Sets {
 		for _, f := range s.Files {
