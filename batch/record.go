@@ -117,10 +117,23 @@ func FileRecords(sets []formats.Result) []FileRecord {
 }
 
 // WriteRecord writes the record into dir atomically (temporary file, fsync,
-// rename), one job at a time, so that a record of 100,000 jobs is never
-// held as one buffer. The bytes are those of json.MarshalIndent(r, "", "  ")
-// (with empty lists written as [] even when nil).
+// rename), one job at a time, so that no record is held as one buffer. The
+// bytes are those of json.MarshalIndent(r, "", "  ") (with empty lists
+// written as [] even when nil).
 func WriteRecord(dir string, r *RunRecord) error {
+	return writeRecord(dir, r, func(w *bufio.Writer) error {
+		for i := range r.Jobs {
+			if err := writeElement(w, i, r.Jobs[i]); err != nil {
+				return err
+			}
+		}
+		return nil
+	}, len(r.Jobs))
+}
+
+// writeRecord writes r's head and files, with the jobs list's elements
+// supplied by jobs (n of them).
+func writeRecord(dir string, r *RunRecord, jobs func(*bufio.Writer) error, n int) error {
 	return atomicfile.Write(filepath.Join(dir, RecordFile), 0o644, func(w io.Writer) error {
 		head, err := json.MarshalIndent(recordHead{r.Run, r.Manifest, r.ManifestHash, r.Tool, r.Shard, r.Succeeded}, "", "  ")
 		if err != nil {
@@ -128,15 +141,87 @@ func WriteRecord(dir string, r *RunRecord) error {
 		}
 		bw := bufio.NewWriterSize(w, 1<<16)
 		bw.Write(head[:len(head)-len("\n}")])
-		if err := writeList(bw, "jobs", len(r.Jobs), func(i int) any { return r.Jobs[i] }); err != nil {
+		bw.WriteString(",\n  \"jobs\": [")
+		if err := jobs(bw); err != nil {
 			return err
 		}
-		if err := writeList(bw, "files", len(r.Files), func(i int) any { return r.Files[i] }); err != nil {
-			return err
+		closeList(bw, n)
+		bw.WriteString(",\n  \"files\": [")
+		for i := range r.Files {
+			if err := writeElement(bw, i, r.Files[i]); err != nil {
+				return err
+			}
 		}
+		closeList(bw, len(r.Files))
 		bw.WriteString("\n}\n")
 		return bw.Flush()
 	})
+}
+
+// writeElement writes element i of a list as json.MarshalIndent would
+// inside an object at the top level.
+func writeElement(w *bufio.Writer, i int, v any) error {
+	b, err := json.MarshalIndent(v, "    ", "  ")
+	if err != nil {
+		return err
+	}
+	if i > 0 {
+		w.WriteByte(',')
+	}
+	w.WriteString("\n    ")
+	w.Write(b)
+	return nil
+}
+
+func closeList(w *bufio.Writer, n int) {
+	if n > 0 {
+		w.WriteString("\n  ")
+	}
+	w.WriteByte(']')
+}
+
+// jobLog collects the run record's job entries in a temporary file as jobs
+// finish, in job order.
+type jobLog struct {
+	f *os.File
+	w *bufio.Writer
+	n int
+}
+
+func newJobLog(dir string) (*jobLog, error) {
+	f, err := os.CreateTemp(dir, "."+RecordFile+".jobs-*")
+	if err != nil {
+		return nil, err
+	}
+	return &jobLog{f: f, w: bufio.NewWriterSize(f, 1<<16)}, nil
+}
+
+func (l *jobLog) add(r JobRecord) error {
+	if err := writeElement(l.w, l.n, r); err != nil {
+		return err
+	}
+	l.n++
+	return nil
+}
+
+// writeRecord writes the run record with the collected jobs.
+func (l *jobLog) writeRecord(dir string, r *RunRecord) error {
+	if err := l.w.Flush(); err != nil {
+		return err
+	}
+	if _, err := l.f.Seek(0, io.SeekStart); err != nil {
+		return err
+	}
+	return writeRecord(dir, r, func(w *bufio.Writer) error {
+		_, err := io.Copy(w, l.f)
+		return err
+	}, l.n)
+}
+
+// discard removes the temporary file.
+func (l *jobLog) discard() {
+	l.f.Close()
+	os.Remove(l.f.Name())
 }
 
 // recordHead holds the fields of RunRecord that precede its lists, in the
@@ -148,29 +233,6 @@ type recordHead struct {
 	Tool         string `json:"tool_version"`
 	Shard        string `json:"shard"`
 	Succeeded    bool   `json:"succeeded"`
-}
-
-// writeList writes `,\n  "name": [ ... ]` with each element indented as
-// json.MarshalIndent would.
-func writeList(w *bufio.Writer, name string, n int, at func(int) any) error {
-	fmt.Fprintf(w, ",\n  %q: [", name)
-	if n == 0 {
-		w.WriteString("]")
-		return nil
-	}
-	for i := 0; i < n; i++ {
-		b, err := json.MarshalIndent(at(i), "    ", "  ")
-		if err != nil {
-			return err
-		}
-		if i > 0 {
-			w.WriteByte(',')
-		}
-		w.WriteString("\n    ")
-		w.Write(b)
-	}
-	w.WriteString("\n  ]")
-	return nil
 }
 
 // ReadRecord reads the run record in dir.

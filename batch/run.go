@@ -52,6 +52,9 @@ type Result struct {
 	// UpToDate reports that the output folder already held this run's
 	// complete output, so nothing was solved or written.
 	UpToDate bool
+	// Jobs counts the jobs of the run (of its shard) and FallbackJobs those
+	// with states that matched fewer moments than requested.
+	Jobs, FallbackJobs int
 }
 
 // solved is a job's result as it travels from a worker to the writer.
@@ -92,16 +95,29 @@ func Run(ctx context.Context, m *manifests.Manifest, opt Options) (*Result, erro
 	if !opt.Force {
 		if rec := upToDate(dir, m, sh, format); rec != nil {
 			log.Info("output is up to date; nothing to do (use --force to rewrite it)", "folder", dir)
-			return &Result{Dir: dir, Record: rec, UpToDate: true}, nil
+			res := &Result{Dir: dir, Record: rec, UpToDate: true, Jobs: len(rec.Jobs)}
+			for _, j := range rec.Jobs {
+				if j.Fallbacks > 0 {
+					res.FallbackJobs++
+				}
+			}
+			rec.Jobs = nil
+			return res, nil
 		}
 	}
-	res := &Result{Dir: dir, Record: &RunRecord{
+	// The record's job list streams to a temporary file as jobs finish, so
+	// memory does not grow with the number of jobs; Record.Jobs stays nil.
+	res := &Result{Dir: dir, Jobs: len(jobs), Record: &RunRecord{
 		Run: m.Run, Manifest: m.File, ManifestHash: m.Hash, Tool: version.Tool, Shard: sh.String(),
-		Jobs: make([]JobRecord, len(jobs)),
 	}}
-	for k, ji := range jobs {
-		j := m.Jobs[ji]
-		res.Record.Jobs[k] = JobRecord{Index: ji, Process: j.Process, Point: j.Point, Params: Params(j.Params),
+	jobLog, err := newJobLog(dir)
+	if err != nil {
+		return nil, fmt.Errorf("batch: run record: %w", err)
+	}
+	defer jobLog.discard()
+	recordOf := func(k int) JobRecord {
+		j := m.Jobs[jobs[k]]
+		return JobRecord{Index: jobs[k], Process: j.Process, Point: j.Point, Params: Params(j.Params),
 			SpecHash: j.SpecHash, Status: runner.NotRun.String()}
 	}
 
@@ -140,9 +156,11 @@ func Run(ctx context.Context, m *manifests.Manifest, opt Options) (*Result, erro
 
 	sets := newSetWriter(m, dir, format)
 	defer sets.abort()
+	delivered := 0
 	sink := func(k int, v solved, jobErr error) error {
 		job := m.Jobs[jobs[k]]
-		rec := &res.Record.Jobs[k]
+		rec := recordOf(k)
+		delivered = k + 1
 		if opt.Progress != nil {
 			opt.Progress(1)
 		}
@@ -151,11 +169,12 @@ func Run(ctx context.Context, m *manifests.Manifest, opt Options) (*Result, erro
 			res.Failed++
 			log.Error("job failed", "process", job.Process, "point", job.Point, "error", jobErr)
 			sets.fail(job.Process)
-			return nil
+			return jobLog.add(rec)
 		}
 		rec.Status = runner.Done.String()
 		rec.Fallbacks = v.sol.Fallbacks()
 		if rec.Fallbacks > 0 {
+			res.FallbackJobs++
 			log.Debug("states fell back to fewer moments", "process", job.Process, "point", job.Point,
 				"states", rec.Fallbacks, "of", v.sol.States())
 		}
@@ -164,15 +183,23 @@ func Run(ctx context.Context, m *manifests.Manifest, opt Options) (*Result, erro
 			return err
 		}
 		rec.ChainHash = hash
-		return nil
+		return jobLog.add(rec)
 	}
 	report, runErr := runner.Run(ctx, len(jobs), runner.Options{Workers: opt.Workers, KeepGoing: true}, work, sink)
-	for k, st := range report.Jobs {
-		if st.State != runner.Done && res.Record.Jobs[k].Status == runner.NotRun.String() {
-			res.Record.Jobs[k].Status = st.State.String()
-			if st.Err != nil {
-				res.Record.Jobs[k].Error = st.Err.Error()
-			}
+	// Jobs after the last one delivered never reached the sink (the run
+	// stopped): record what became of them.
+	for k := delivered; k < len(jobs); k++ {
+		rec := recordOf(k)
+		st := report.Jobs[k]
+		if st.State != runner.Done {
+			rec.Status = st.State.String()
+		}
+		if st.Err != nil {
+			rec.Error = st.Err.Error()
+		}
+		if err := jobLog.add(rec); err != nil {
+			runErr = errors.Join(runErr, err)
+			break
 		}
 	}
 	res.Cached = int(cachedCount.Load())
@@ -187,7 +214,7 @@ func Run(ctx context.Context, m *manifests.Manifest, opt Options) (*Result, erro
 		runErr = fmt.Errorf("%d of %d jobs failed (see %s)", res.Failed, len(jobs), RecordFile)
 	}
 	res.Record.Succeeded = runErr == nil
-	if err := WriteRecord(dir, res.Record); err != nil {
+	if err := jobLog.writeRecord(dir, res.Record); err != nil {
 		runErr = errors.Join(runErr, fmt.Errorf("batch: writing run record: %w", err))
 	}
 	if runErr == nil && !sh.Whole() {

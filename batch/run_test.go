@@ -106,7 +106,11 @@ func TestRunShards(t *testing.T) {
 		if err != nil {
 			t.Fatal(err)
 		}
-		for _, j := range res.Record.Jobs {
+		rec, err := ReadRecord(dir)
+		if err != nil || res.Jobs != len(rec.Jobs) {
+			t.Fatalf("shard %d: record of %d jobs for %d run, %v", i, len(rec.Jobs), res.Jobs, err)
+		}
+		for _, j := range rec.Jobs {
 			seen[j.SpecHash]++
 		}
 		if _, _, err := shard.ReadStamp(dir); err != nil {
@@ -213,5 +217,38 @@ func TestRunUpToDate(t *testing.T) {
 	}
 	if _, err := formats.Verify(dir); err != nil {
 		t.Error(err)
+	}
+}
+
+// The run record of a canceled run lists every job once, in order, with
+// what became of it.
+func TestRunRecordAfterCancelListsEveryJob(t *testing.T) {
+	m := parse(t, strings.Replace(sweepManifest, "sigma: [0.1, 0.2]", "sigma: {from: 0.05, to: 1, count: 40}", 1))
+	dir := t.TempDir()
+	ctx, cancel := context.WithCancel(context.Background())
+	calls := 0
+	Run(ctx, m, Options{Out: dir, Workers: 1, Progress: func(int) {
+		if calls++; calls == 5 {
+			cancel()
+		}
+	}})
+	rec, err := ReadRecord(dir)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(rec.Jobs) != len(m.Jobs) {
+		t.Fatalf("record lists %d jobs, want %d", len(rec.Jobs), len(m.Jobs))
+	}
+	done := 0
+	for i, j := range rec.Jobs {
+		if j.Index != i {
+			t.Fatalf("job %d recorded as %d", i, j.Index)
+		}
+		if j.Status == "done" {
+			done++
+		}
+	}
+	if done < 5 || done == len(m.Jobs) {
+		t.Errorf("%d of %d jobs recorded done after a cancel at the fifth", done, len(m.Jobs))
 	}
 }

@@ -135,7 +135,7 @@ func cacheFolder(flag string) string {
 }
 
 func printRunSummary(w io.Writer, m *manifests.Manifest, r *batch.Result, took time.Duration) {
-	jobs := len(r.Record.Jobs)
+	jobs := r.Jobs
 	if r.UpToDate {
 		fmt.Fprintf(w, "run %q: %d jobs, output in %s is up to date (same manifest hash and tool version); --force rewrites it\n",
 			m.Run, jobs, r.Dir)
@@ -143,13 +143,7 @@ func printRunSummary(w io.Writer, m *manifests.Manifest, r *batch.Result, took t
 	}
 	fmt.Fprintf(w, "run %q: %d jobs (%d solved, %d from cache, %d failed) in %s, shard %s\n",
 		m.Run, jobs, r.Solved, r.Cached, r.Failed, took.Round(time.Millisecond), r.Record.Shard)
-	fallbacks := 0
-	for _, j := range r.Record.Jobs {
-		if j.Fallbacks > 0 {
-			fallbacks++
-		}
-	}
-	if fallbacks > 0 {
+	if fallbacks := r.FallbackJobs; fallbacks > 0 {
 		fmt.Fprintf(w, "warning: in %d of %d jobs some states matched fewer moments than requested (the grid cannot carry them there); `gridstage report` shows which\n", fallbacks, jobs)
 	}
 	for _, s := range r.Sets {

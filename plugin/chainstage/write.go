@@ -27,11 +27,11 @@ func WriteSets(ctx context.Context, m *manifests.Manifest, dir string) ([]plugin
 		return nil, err
 	}
 	params := map[string]map[int]map[string]float64{}
-	for _, j := range res.Record.Jobs {
+	for _, j := range m.Jobs {
 		if params[j.Process] == nil {
 			params[j.Process] = map[int]map[string]float64{}
 		}
-		params[j.Process][j.Point] = j.Params.Map()
+		params[j.Process][j.Point] = batch.Params(j.Params).Map()
 	}
 	var refs []plugin.ChainRef
 	for _, set := range res.Sets {
