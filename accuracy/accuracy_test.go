@@ -1,15 +1,12 @@
 package accuracy
 
 import (
-	"bytes"
-	"encoding/json"
 	"math"
 	"math/rand/v2"
-	"os"
-	"os/exec"
 	"reflect"
 	"testing"
 
+	"gridstage/internal/pyref"
 	"gridstage/solver"
 )
 
@@ -75,29 +72,11 @@ func TestPopulationExactWithExactMoments(t *testing.T) {
 	}
 }
 
-// pyNumpy runs a program under Debian's /usr/bin/python3 with numpy, input
-// bound to `data`, and decodes its JSON output; it skips when numpy is
-// absent outside CI.
+// pyNumpy runs a reference program with numpy and input bound to data
+// (see pyref.Eval).
 func pyNumpy(t *testing.T, input any, program string, out any) {
 	t.Helper()
-	const python = "/usr/bin/python3"
-	if err := exec.Command(python, "-c", "import numpy").Run(); err != nil {
-		if os.Getenv("CI") == "true" {
-			t.Fatalf("reference library missing in CI: %s cannot import numpy: %v", python, err)
-		}
-		t.Skipf("skipping numpy reference check: %s cannot import numpy (apt-get install python3-numpy)", python)
-	}
-	in, _ := json.Marshal(input)
-	cmd := exec.Command(python, "-c", "import json, sys, numpy as np\ndata = json.load(sys.stdin)\n"+program)
-	cmd.Stdin = bytes.NewReader(in)
-	cmd.Stderr = os.Stderr
-	b, err := cmd.Output()
-	if err != nil {
-		t.Fatalf("python reference failed: %v", err)
-	}
-	if err := json.Unmarshal(b, out); err != nil {
-		t.Fatalf("decoding %q: %v", b, err)
-	}
+	pyref.Eval(t, input, program, out)
 }
 
 // TestOLSAgainstNumpy compares OLS with numpy.linalg.lstsq on a simulated

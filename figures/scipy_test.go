@@ -1,30 +1,13 @@
 package figures
 
 import (
-	"encoding/json"
-	"os"
-	"os/exec"
 	"testing"
+
+	"gridstage/internal/pyref"
 )
 
-// scipyEval runs a Python program under Debian's /usr/bin/python3, where
-// python3-scipy installs, and decodes the JSON it prints into out. The test
-// is skipped when scipy is absent, except in CI (CI=true), where .ci/run
-// installs it and a missing library is a failure.
+// scipyEval runs a reference program with scipy available (see pyref.Eval).
 func scipyEval(t *testing.T, program string, out any) {
 	t.Helper()
-	const python = "/usr/bin/python3"
-	if err := exec.Command(python, "-c", "import scipy").Run(); err != nil {
-		if os.Getenv("CI") == "true" {
-			t.Fatalf("reference library missing in CI: %s cannot import scipy (install python3-scipy): %v", python, err)
-		}
-		t.Skipf("skipping scipy reference check: %s cannot import scipy (apt-get install python3-scipy)", python)
-	}
-	raw, err := exec.Command(python, "-c", program).Output()
-	if err != nil {
-		t.Fatalf("python reference program failed: %v", err)
-	}
-	if err := json.Unmarshal(raw, out); err != nil {
-		t.Fatalf("decoding python output %q: %v", raw, err)
-	}
+	pyref.Eval(t, nil, program, out, "scipy")
 }
