@@ -55,6 +55,26 @@ func (w *Dual) Solve(logq, dev []float64, L int, lam0, p []float64) (lam []float
 	return w.solve(logq, dev, L, lam0, p, dualMaxIter)
 }
 
+// solveOrProve solves the dual from start in stages: a short Newton run of
+// quick iterations, which is enough for feasible targets away from the
+// hull's boundary; then, only if that fails, the caller's exact test that
+// the target lies outside the hull (infeasible; it spares the long
+// divergent runs), else the full budget from where Newton stopped, else a
+// cold start.
+func (w *Dual) solveOrProve(logq, dev []float64, L int, start, p []float64, quick int, infeasible func() bool) ([]float64, bool) {
+	lam, ok := w.solve(logq, dev, L, start, p, quick)
+	if ok {
+		return lam, true
+	}
+	if infeasible() {
+		return lam, false
+	}
+	if lam, ok = w.Solve(logq, dev, L, lam, p); ok {
+		return lam, true
+	}
+	return w.Solve(logq, dev, L, nil, p)
+}
+
 // solve is Solve with an iteration budget.
 //
 // Each iteration makes one pass over the grid for the gradient and the

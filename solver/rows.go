@@ -72,19 +72,10 @@ func maxentRows(nodes, logW []float64, law conditional, L int, trans []float64, 
 			if warmL == l {
 				start = warm[:l]
 			}
-			// Feasible states converge in a few Newton steps; only when a
-			// short budget runs out is the exact hull test worth its cost,
-			// and it spares the long divergent runs of infeasible targets.
-			lam, ok := dual.solve(logq, dev[:n*l], l, start, row, quickIter)
-			if !ok {
-				if feasible, decided := powerMomentsFeasible(z, targets[:l]); decided && !feasible {
-					continue
-				}
-				lam, ok = dual.Solve(logq, dev[:n*l], l, lam, row)
-				if !ok {
-					lam, ok = dual.Solve(logq, dev[:n*l], l, nil, row)
-				}
-			}
+			lam, ok := dual.solveOrProve(logq, dev[:n*l], l, start, row, quickIter, func() bool {
+				feasible, decided := powerMomentsFeasible(z, targets[:l])
+				return decided && !feasible
+			})
 			if ok {
 				copy(warm, lam)
 				warmL, got = l, l

@@ -131,20 +131,10 @@ func maxentVectorRows(grid, logW []float64, law gaussianVectorLaw, L int, trans 
 			if warmL == l {
 				start = warm[:cols]
 			}
-			// Feasible states converge in a few Newton steps. When a short
-			// budget runs out, Wolfe's minimum-norm-point test can prove the
-			// target outside the hull and spare the long divergent runs;
-			// otherwise Newton continues, then restarts cold.
-			lam, ok := dual.solve(logq, dev[:n*cols], cols, start, row, vectorQuickIter)
-			if !ok {
-				if separated(dev[:n*cols], n, cols) {
-					continue
-				}
-				lam, ok = dual.Solve(logq, dev[:n*cols], cols, lam, row)
-				if !ok {
-					lam, ok = dual.Solve(logq, dev[:n*cols], cols, nil, row)
-				}
-			}
+			// Wolfe's minimum-norm-point test proves infeasibility.
+			lam, ok := dual.solveOrProve(logq, dev[:n*cols], cols, start, row, vectorQuickIter, func() bool {
+				return separated(dev[:n*cols], n, cols)
+			})
 			if ok {
 				copy(warm, lam)
 				warmL, got = l, l
