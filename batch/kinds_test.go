@@ -10,7 +10,7 @@ import (
 	"strings"
 	"testing"
 
-	"gridstage/cache"
+	"gridstage/batch/cache"
 	"gridstage/formats"
 	"gridstage/solver"
 )

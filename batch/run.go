@@ -9,12 +9,12 @@ import (
 	"path/filepath"
 	"sync/atomic"
 
-	"gridstage/cache"
+	"gridstage/batch/cache"
+	"gridstage/batch/runner"
+	"gridstage/batch/shard"
 	"gridstage/formats"
 	"gridstage/internal/version"
 	"gridstage/manifests"
-	"gridstage/runner"
-	"gridstage/shard"
 )
 
 // Options choose how a manifest is run. The zero value runs every job on

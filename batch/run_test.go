@@ -10,10 +10,10 @@ import (
 	"strings"
 	"testing"
 
-	"gridstage/cache"
+	"gridstage/batch/cache"
+	"gridstage/batch/shard"
 	"gridstage/formats"
 	"gridstage/manifests"
-	"gridstage/shard"
 )
 
 const sweepManifest = `run: batch-test

@@ -13,14 +13,14 @@ import (
 	"gridstage/solver"
 )
 
-// interopScript locates interop/check.mjs and its installed packages. When
+// interopScript locates tools/interop/check.mjs and its installed packages. When
 // node or the packages are missing the test is skipped, except under CI
 // (CI=true), where .ci/run installs them and their absence is a failure.
 func interopScript(t *testing.T) (node, script string) {
 	t.Helper()
-	script, _ = filepath.Abs(filepath.Join("..", "interop", "check.mjs"))
+	script, _ = filepath.Abs(filepath.Join("..", "tools", "interop", "check.mjs"))
 	missing := func(what string) {
-		msg := "interoperability check needs " + what + " (install with: cd interop && npm ci)"
+		msg := "interoperability check needs " + what + " (install with: cd tools/interop && npm ci)"
 		if os.Getenv("CI") == "true" {
 			t.Fatal(msg)
 		}
@@ -53,7 +53,7 @@ type interopFile struct {
 // σ = 0.1, maximum entropy, 9 states), a life-cycle chain and a VAR sweep
 // with vector diagnostics (vectorSet: nulls among the vector columns) in
 // both formats, then reads them with DuckDB (Parquet) and apache-arrow (Arrow
-// IPC) through interop/check.mjs, which checks metadata keys, probabilities
+// IPC) through tools/interop/check.mjs, which checks metadata keys, probabilities
 // in [0, 1], row sums within 1e-12, and recomputes every content hash from
 // the values those readers return with its own implementation of the
 // encoding in docs/HASHES.md. Here the metadata and row counts the
@@ -89,11 +89,11 @@ func TestInteropDuckDBArrow(t *testing.T) {
 	}
 	out, err := exec.Command(node, append([]string{script}, args...)...).Output()
 	if err != nil {
-		t.Fatalf("interop/check.mjs failed: %v\n%s", err, stderrOf(err))
+		t.Fatalf("tools/interop/check.mjs failed: %v\n%s", err, stderrOf(err))
 	}
 	var rep struct{ Files []interopFile }
 	if err := json.Unmarshal(out, &rep); err != nil {
-		t.Fatalf("interop/check.mjs printed no JSON report: %v\n%s", err, out)
+		t.Fatalf("tools/interop/check.mjs printed no JSON report: %v\n%s", err, out)
 	}
 	if len(rep.Files) != len(args) {
 		t.Fatalf("the readers checked %d files, want %d", len(rep.Files), len(args))

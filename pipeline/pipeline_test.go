@@ -13,7 +13,7 @@ import (
 	"testing"
 	"time"
 
-	"gridstage/lineage"
+	"gridstage/pipeline/lineage"
 	"gridstage/plugin"
 )
 

@@ -13,7 +13,7 @@ import (
 	"strings"
 	"time"
 
-	"gridstage/lineage"
+	"gridstage/pipeline/lineage"
 	"gridstage/plugin"
 )
 

@@ -3,7 +3,7 @@ package report
 import (
 	"testing"
 
-	"gridstage/figures"
+	"gridstage/report/figures"
 	"gridstage/solver"
 )
 

@@ -8,10 +8,10 @@ import (
 	"sort"
 
 	"gridstage/batch"
-	"gridstage/figures"
+	"gridstage/batch/runner"
 	"gridstage/formats"
 	"gridstage/manifests"
-	"gridstage/runner"
+	"gridstage/report/figures"
 	"gridstage/solver"
 )
 

@@ -6,7 +6,7 @@ import (
 	"fmt"
 	"os"
 
-	"gridstage/figures"
+	"gridstage/report/figures"
 	"gridstage/solver"
 )
 

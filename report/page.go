@@ -9,8 +9,8 @@ import (
 	"math"
 	"sort"
 
-	"gridstage/figures"
 	"gridstage/internal/version"
+	"gridstage/report/figures"
 )
 
 // Options tune a report. The zero value is ready to use.

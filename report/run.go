@@ -5,7 +5,7 @@ import (
 	"sort"
 	"strings"
 
-	"gridstage/figures"
+	"gridstage/report/figures"
 )
 
 // Run is one gridstage output as the report shows it.

@@ -4,7 +4,7 @@ import (
 	"fmt"
 	"math"
 
-	"gridstage/figures"
+	"gridstage/report/figures"
 	"gridstage/solver"
 )
 

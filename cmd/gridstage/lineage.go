@@ -10,7 +10,7 @@ import (
 
 	"github.com/spf13/cobra"
 
-	"gridstage/lineage"
+	"gridstage/pipeline/lineage"
 	"gridstage/plugin"
 )
 

@@ -6,8 +6,8 @@ import (
 
 	"github.com/spf13/cobra"
 
+	"gridstage/batch/merge"
 	"gridstage/formats"
-	"gridstage/merge"
 )
 
 func init() { extraCommands = append(extraCommands, newMergeCmd) }

@@ -10,9 +10,9 @@ import (
 
 	"github.com/spf13/cobra"
 
-	"gridstage/figures"
 	"gridstage/internal/atomicfile"
 	"gridstage/report"
+	"gridstage/report/figures"
 )
 
 func init() { extraCommands = append(extraCommands, newPlotCmd) }

@@ -15,12 +15,12 @@ import (
 	"github.com/spf13/cobra"
 
 	"gridstage/batch"
-	"gridstage/cache"
+	"gridstage/batch/cache"
+	"gridstage/batch/shard"
 	"gridstage/formats"
-	"gridstage/logging"
+	"gridstage/internal/logging"
+	"gridstage/internal/progress"
 	"gridstage/manifests"
-	"gridstage/progress"
-	"gridstage/shard"
 )
 
 func init() { extraCommands = append(extraCommands, newRunCmd) }

@@ -8,9 +8,9 @@ import (
 
 	"github.com/spf13/cobra"
 
-	"gridstage/cache"
+	"gridstage/batch/cache"
+	"gridstage/batch/slurm"
 	"gridstage/manifests"
-	"gridstage/slurm"
 )
 
 func init() { extraCommands = append(extraCommands, newSlurmScriptCmd) }

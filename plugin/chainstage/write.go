@@ -5,7 +5,7 @@ import (
 	"path/filepath"
 
 	"gridstage/batch"
-	"gridstage/cache"
+	"gridstage/batch/cache"
 	"gridstage/formats"
 	"gridstage/manifests"
 	"gridstage/plugin"

@@ -4,7 +4,7 @@ import (
 	"context"
 	"fmt"
 
-	"gridstage/runner"
+	"gridstage/batch/runner"
 )
 
 func ExampleRun() {

@@ -6,7 +6,7 @@
 # run. Then re-runs the manifest against the cache the array tasks filled and
 # checks that nothing is solved again. Always stops the daemons it started.
 #
-# Usage: scripts/slurm-check.sh [MANIFEST]   (default testdata/slurm/sweep.yaml)
+# Usage: tools/slurm-check.sh [MANIFEST]   (default testdata/slurm/sweep.yaml)
 # Needs root (it installs Debian's Slurm and munge and starts their daemons).
 set -euo pipefail
 repo=$(cd "$(dirname "$0")/.." && pwd)
@@ -14,7 +14,7 @@ manifest=$(realpath "${1:-$repo/testdata/slurm/sweep.yaml}")
 tasks=4
 
 # shellcheck source=slurm-cluster.sh
-. "$repo/scripts/slurm-cluster.sh"
+. "$repo/tools/slurm-cluster.sh"
 
 work=$(mktemp -d /tmp/gridstage-slurm.XXXXXX)
 chmod 755 "$work"
@@ -42,7 +42,7 @@ fail() {
 cluster_install
 
 say "building gridstage"
-(cd "$repo" && go build -o "$work/bin/gridstage" ./cmd/gridstage && go build -o "$work/bin/contenthashes" ./scripts/contenthashes)
+(cd "$repo" && go build -o "$work/bin/gridstage" ./cmd/gridstage && go build -o "$work/bin/contenthashes" ./tools/contenthashes)
 gs=$work/bin/gridstage
 
 say "single-machine run of $manifest"

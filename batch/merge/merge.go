@@ -27,8 +27,8 @@ import (
 	"strings"
 
 	"gridstage/batch"
+	"gridstage/batch/shard"
 	"gridstage/formats"
-	"gridstage/shard"
 )
 
 // Result describes a merge.

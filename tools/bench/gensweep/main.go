@@ -1,7 +1,7 @@
 // Command gensweep writes a benchmark manifest with N AR(1) parameter draws
 // (docs/BENCHMARKS.md), for timing or measuring gridstage run from outside:
 //
-//	go run ./bench/gensweep -points 100000 -out /tmp/sweep100k
+//	go run ./tools/bench/gensweep -points 100000 -out /tmp/sweep100k
 //	/usr/bin/time -v gridstage run /tmp/sweep100k/sweep.yaml --cache off
 package main
 
@@ -10,7 +10,7 @@ import (
 	"fmt"
 	"os"
 
-	"gridstage/bench"
+	"gridstage/tools/bench"
 )
 
 func main() {

@@ -11,8 +11,8 @@ import (
 	"testing"
 
 	"gridstage/batch"
+	"gridstage/batch/shard"
 	"gridstage/formats"
-	"gridstage/shard"
 	"gridstage/solver"
 )
 

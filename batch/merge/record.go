@@ -5,8 +5,8 @@ import (
 	"sort"
 
 	"gridstage/batch"
+	"gridstage/batch/shard"
 	"gridstage/formats"
-	"gridstage/shard"
 )
 
 // mergeRecords combines the shards' run records into the record of the

@@ -7,9 +7,9 @@ import (
 	"testing"
 
 	"gridstage/batch"
-	"gridstage/cache"
+	"gridstage/batch/cache"
+	"gridstage/batch/runner"
 	"gridstage/manifests"
-	"gridstage/runner"
 )
 
 // load writes and loads a sweep manifest.
