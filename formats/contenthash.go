@@ -139,13 +139,3 @@ func (h *contentHasher) sum() string {
 	}
 	return hex.EncodeToString(top.Sum(nil))
 }
-
-// columnSums returns the per-column digests, used to name the column that
-// differs when a content hash does not match.
-func (h *contentHasher) columnSums() []string {
-	out := make([]string, len(h.cols))
-	for i, c := range h.cols {
-		out[i] = hex.EncodeToString(c.Sum(nil))
-	}
-	return out
-}

@@ -4,7 +4,6 @@ import (
 	"fmt"
 	"math"
 	"os"
-	"path/filepath"
 	"testing"
 
 	"gridstage/solver"
@@ -231,22 +230,6 @@ func readFile(t testing.TB, path string) []byte {
 		t.Fatal(err)
 	}
 	return b
-}
-
-// copyDir copies the regular files of a folder into a new temporary one.
-func copyDir(t testing.TB, dir string) string {
-	t.Helper()
-	out := t.TempDir()
-	entries, err := os.ReadDir(dir)
-	if err != nil {
-		t.Fatal(err)
-	}
-	for _, e := range entries {
-		if err := os.WriteFile(filepath.Join(out, e.Name()), readFile(t, filepath.Join(dir, e.Name())), 0o644); err != nil {
-			t.Fatal(err)
-		}
-	}
-	return out
 }
 
 // lifeCycleSet holds one life-cycle point of an invented earnings profile:

@@ -22,7 +22,6 @@ type burnsideCase struct {
 	mu, rho, sigma float64
 	source         string
 	best           string // column whose error must be smallest
-	bestSetting    solver.Settings
 	bestWhy        string
 }
 

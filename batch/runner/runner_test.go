@@ -193,8 +193,8 @@ func TestRunTurnsPanicIntoJobError(t *testing.T) {
 	_, err := Run(context.Background(), 20, Options{Workers: 2},
 		func(_ context.Context, i int) (int, error) {
 			if i == 4 {
-				var m map[string]int
-				m["x"] = 1 // nil map: panics
+				var rows []int
+				_ = rows[i] // index out of range: a runtime panic
 			}
 			return i, nil
 		},

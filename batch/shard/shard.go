@@ -125,7 +125,7 @@ func FromSlurm(getenv func(string) string) (s Shard, ok bool, err error) {
 		return Shard{}, true, err
 	}
 	if step < 1 || count < 1 {
-		return Shard{}, true, fmt.Errorf("Slurm array with step %d and %d tasks; pass --shard I/N", step, count)
+		return Shard{}, true, fmt.Errorf("the Slurm array has step %d and %d tasks; pass --shard I/N", step, count)
 	}
 	if hiText := getenv(EnvTaskMax); hiText != "" {
 		hi, err := num(EnvTaskMax, "")
@@ -133,12 +133,12 @@ func FromSlurm(getenv func(string) string) (s Shard, ok bool, err error) {
 			return Shard{}, true, err
 		}
 		if hi-lo != (count-1)*step {
-			return Shard{}, true, fmt.Errorf("Slurm array %d-%d:%d does not have %d evenly spaced tasks (an index list?); use a range such as --array=0-%d, or pass --shard I/N",
+			return Shard{}, true, fmt.Errorf("the Slurm array %d-%d:%d does not have %d evenly spaced tasks (an index list?); use a range such as --array=0-%d, or pass --shard I/N",
 				lo, hi, step, count, count-1)
 		}
 	}
 	if id < lo || (id-lo)%step != 0 || (id-lo)/step >= count {
-		return Shard{}, true, fmt.Errorf("Slurm array task %d is not in %d-%d:%d; pass --shard I/N", id, lo, lo+(count-1)*step, step)
+		return Shard{}, true, fmt.Errorf("the Slurm array task %d is not in %d-%d:%d; pass --shard I/N", id, lo, lo+(count-1)*step, step)
 	}
 	return Shard{Index: (id-lo)/step + 1, Count: count}, true, nil
 }

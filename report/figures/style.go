@@ -24,7 +24,6 @@ var (
 	orange     = color.RGBA{0xe6, 0x9f, 0x00, 0xff} // the baseline
 	vermillion = color.RGBA{0xd5, 0x5e, 0x00, 0xff} // fallbacks and failures
 	green      = color.RGBA{0x00, 0x9e, 0x73, 0xff} // the true process
-	purple     = color.RGBA{0xcc, 0x79, 0xa7, 0xff} // second principal axis
 )
 
 // sans is the typeface of every label; Liberation Sans ships with gonum/plot
