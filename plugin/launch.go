@@ -277,24 +277,45 @@ func (p *Process) Name() string { return p.name }
 // Stderr returns the last lines the stage wrote to stderr.
 func (p *Process) Stderr() []string { return p.tail.lines() }
 
-// Close stops the stage: a graceful shutdown, a kill after two seconds,
-// then a kill of its whole process group so that nothing it started
-// outlives it. It waits for the process to be reaped. Safe to call twice.
+// Close stops the stage: a graceful shutdown, then after closeGrace a
+// kill of its whole process group, so that nothing it started outlives it
+// and no child holding the stage's pipes (a shell wrapper's sleep, say)
+// can keep the host waiting. It returns within about 2·closeGrace whatever
+// the stage does. Safe to call twice.
 func (p *Process) Close() {
 	p.once.Do(func() {
 		var pgid int
 		if p.cmd.Process != nil {
 			pgid = p.cmd.Process.Pid
 		}
-		p.client.Kill()
+		done := make(chan struct{})
+		go func() {
+			// go-plugin's Kill waits for the stage's stdout and stderr to
+			// close, which a grandchild that inherited them can put off
+			// forever; killing the group below releases it.
+			p.client.Kill()
+			close(done)
+		}()
+		select {
+		case <-done:
+		case <-time.After(closeGrace):
+		}
 		if pgid > 0 {
 			killProcessGroup(pgid)
+		}
+		select {
+		case <-done:
+		case <-time.After(closeGrace):
 		}
 		if p.sockets != "" {
 			os.RemoveAll(p.sockets)
 		}
 	})
 }
+
+// closeGrace is how long Close lets a stage shut down by itself (go-plugin
+// waits 2 s for a graceful exit) before it kills the stage's process group.
+const closeGrace = 3 * time.Second
 
 // tailBuffer keeps the last max lines written to it.
 type tailBuffer struct {
