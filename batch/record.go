@@ -49,6 +49,9 @@ type RunRecord struct {
 	Manifest     string       `json:"manifest"`
 	ManifestHash string       `json:"manifest_hash"`
 	Tool         string       `json:"tool_version"`
+	// Numeric is the numeric version the chains were solved under
+	// (internal/version.Numeric); every spec hash binds it.
+	Numeric      string       `json:"numeric_version"`
 	Shard        string       `json:"shard"`
 	Succeeded    bool         `json:"succeeded"`
 	Jobs         []JobRecord  `json:"jobs"`
@@ -135,7 +138,7 @@ func WriteRecord(dir string, r *RunRecord) error {
 // supplied by jobs (n of them).
 func writeRecord(dir string, r *RunRecord, jobs func(*bufio.Writer) error, n int) error {
 	return atomicfile.Write(filepath.Join(dir, RecordFile), 0o644, func(w io.Writer) error {
-		head, err := json.MarshalIndent(recordHead{r.Run, r.Manifest, r.ManifestHash, r.Tool, r.Shard, r.Succeeded}, "", "  ")
+		head, err := json.MarshalIndent(recordHead{r.Run, r.Manifest, r.ManifestHash, r.Tool, r.Numeric, r.Shard, r.Succeeded}, "", "  ")
 		if err != nil {
 			return err
 		}
@@ -231,6 +234,7 @@ type recordHead struct {
 	Manifest     string `json:"manifest"`
 	ManifestHash string `json:"manifest_hash"`
 	Tool         string `json:"tool_version"`
+	Numeric      string `json:"numeric_version"`
 	Shard        string `json:"shard"`
 	Succeeded    bool   `json:"succeeded"`
 }

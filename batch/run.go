@@ -108,7 +108,7 @@ func Run(ctx context.Context, m *manifests.Manifest, opt Options) (*Result, erro
 	// The record's job list streams to a temporary file as jobs finish, so
 	// memory does not grow with the number of jobs; Record.Jobs stays nil.
 	res := &Result{Dir: dir, Jobs: len(jobs), Record: &RunRecord{
-		Run: m.Run, Manifest: m.File, ManifestHash: m.Hash, Tool: version.Tool, Shard: sh.String(),
+		Run: m.Run, Manifest: m.File, ManifestHash: m.Hash, Tool: version.Tool, Numeric: version.Numeric, Shard: sh.String(),
 	}}
 	jobLog, err := newJobLog(dir)
 	if err != nil {
@@ -242,7 +242,7 @@ func paramMap(ps []manifests.Param) map[string]float64 {
 // not re-read the files: `gridstage verify` checks their contents.
 func upToDate(dir string, m *manifests.Manifest, sh shard.Shard, f formats.Format) *RunRecord {
 	rec, err := ReadRecord(dir)
-	if err != nil || !rec.Succeeded || rec.ManifestHash != m.Hash || rec.Tool != version.Tool ||
+	if err != nil || !rec.Succeeded || rec.ManifestHash != m.Hash || rec.Tool != version.Tool || rec.Numeric != version.Numeric ||
 		rec.Shard != sh.String() || len(rec.Files) == 0 {
 		return nil
 	}

@@ -6,6 +6,7 @@ import (
 	"os"
 	"testing"
 
+	"gridstage/internal/version"
 	"gridstage/solver"
 )
 
@@ -39,7 +40,7 @@ func sweepSet(t testing.TB, points, ages, states int) *Set {
 			sigma := 0.1 + 0.01*float64(a)
 			c, d, b := sampleAR1(t, rho, sigma, states)
 			r := Record{Point: p, Params: map[string]float64{"rho": rho, "sigma": 0.1}, Age: a,
-				SpecHash: fmt.Sprintf("%064x", p+1), Spec: []byte(spec), Chain: c, Diag: d}
+				SpecHash: specHash(spec), Spec: []byte(spec), Chain: c, Diag: d}
 			if p%2 == 0 {
 				r.Baseline = &b
 			}
@@ -75,7 +76,7 @@ func productSet(t testing.TB) *Set {
 	}
 	d := solver.Diagnose(c, solver.AR1{Rho: 0.9, Sigma: 0.1})
 	return &Set{Header: Header{Run: "firm-panel", Process: "firm.productivity", Kind: "product", Method: "maxent", Dim: 2},
-		Records: []Record{{Point: 0, Params: map[string]float64{}, SpecHash: "feed", Spec: []byte(`{"kind":"product"}`), Chain: c, Diag: d}}}
+		Records: []Record{{Point: 0, Params: map[string]float64{}, SpecHash: specHash(`{"kind":"product"}`), Spec: []byte(`{"kind":"product"}`), Chain: c, Diag: d}}}
 }
 
 // sameBits reports whether two float slices are identical bit for bit
@@ -212,7 +213,7 @@ func vectorSet(t testing.TB) *Set {
 		}
 		vc, vb := solver.DiagnoseVector(c, p), solver.DiagnoseVector(b, p)
 		dc, db := solver.Diagnose(c, p), solver.Diagnose(b, p)
-		r := Record{Point: pt, Params: map[string]float64{"coef[0][0]": b00}, SpecHash: fmt.Sprintf("%064x", pt+7),
+		r := Record{Point: pt, Params: map[string]float64{"coef[0][0]": b00}, SpecHash: specHash(`{"kind":"var"}`),
 			Spec: []byte(`{"kind":"var"}`), Chain: c, Diag: dc, Baseline: &db, Vector: NewVectorDiag(&vc), BaselineVector: NewVectorDiag(&vb)}
 		if pt == 1 {
 			r.Vector.ChainMean, r.Vector.ChainCov, r.Vector.StationaryCovErr = nil, nil, 0
@@ -245,7 +246,7 @@ func lifeCycleSet(t testing.TB) *Set {
 		t.Fatal(err)
 	}
 	s := &Set{Header: Header{Run: "earnings-profile", Process: "income", Kind: "lifecycle", Method: "maxent", Dim: 1}}
-	base := Record{Point: 0, Params: map[string]float64{}, SpecHash: "0c0ffee", Spec: []byte(`{"kind":"lifecycle"}`)}
+	base := Record{Point: 0, Params: map[string]float64{}, SpecHash: specHash(`{"kind":"lifecycle"}`), Spec: []byte(`{"kind":"lifecycle"}`)}
 	for a, c := range ac.Ages {
 		r := base
 		r.Age, r.Chain = a, c
@@ -260,3 +261,7 @@ func lifeCycleSet(t testing.TB) *Set {
 	final.Chain = &solver.Chain{Dim: 1, Grid: ac.Final, Method: ac.Method, Matched: make([]int, len(ac.Final))}
 	return &Set{Header: s.Header, Records: append(s.Records, final)}
 }
+
+// specHash is the spec hash of a test spec under the current numeric
+// version, as verify recomputes it.
+func specHash(spec string) string { return version.SpecHash(version.Numeric, []byte(spec)) }

@@ -69,7 +69,7 @@ func TestInteropDuckDBArrow(t *testing.T) {
 		if err != nil {
 			t.Fatal(err)
 		}
-		set.Records = append(set.Records, Record{Point: i, Params: map[string]float64{"rho": rho}, SpecHash: strconv.Itoa(i + 1),
+		set.Records = append(set.Records, Record{Point: i, Params: map[string]float64{"rho": rho}, SpecHash: specHash(`{"rho":` + strconv.FormatFloat(rho, 'g', -1, 64) + `}`),
 			Spec: []byte(`{"rho":` + strconv.FormatFloat(rho, 'g', -1, 64) + `}`), Chain: c, Diag: solver.Diagnose(c, p)})
 	}
 	dir := t.TempDir()

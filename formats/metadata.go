@@ -13,8 +13,10 @@ import (
 
 // FormatVersion is the version of the layout described in docs/FORMATS.md.
 // It changes whenever a column or metadata key changes meaning. Version 2
-// added the vector columns of the diagnostics and summary tables.
-const FormatVersion = "2"
+// added the vector columns of the diagnostics and summary tables; version 3
+// the numeric version (KeyNumeric), which verify checks every spec hash
+// against.
+const FormatVersion = "3"
 
 // Key/value metadata keys carried by every file (Parquet key/value
 // metadata; Arrow IPC schema metadata).
@@ -22,6 +24,7 @@ const (
 	KeyFormatVersion = "gridstage.format_version" // FormatVersion
 	KeyTable         = "gridstage.table"          // points, transitions, states, diagnostics or summary
 	KeyTool          = "gridstage.tool_version"   // gridstage version that wrote the file
+	KeyNumeric       = "gridstage.numeric_version" // numeric version the chains were solved under
 	KeyRun           = "gridstage.run"            // run name
 	KeyProcess       = "gridstage.process"        // process name
 	KeyKind          = "gridstage.kind"           // process kind
@@ -52,7 +55,7 @@ const (
 )
 
 // requiredKeys are present in every file.
-var requiredKeys = []string{KeyFormatVersion, KeyTable, KeyTool, KeyRun, KeyProcess, KeyKind, KeyMethod,
+var requiredKeys = []string{KeyFormatVersion, KeyTable, KeyTool, KeyNumeric, KeyRun, KeyProcess, KeyKind, KeyMethod,
 	KeyDim, KeyParams, KeyManifestHash, KeyPoints, KeyRows, KeySpecDigest, KeyContentHash, KeyMetadataHash}
 
 // metadataHash returns SHA-256 over the gridstage.* keys of m other than
@@ -97,6 +100,7 @@ func baseMeta(h Header, points int, specDigest string) map[string]string {
 	return map[string]string{
 		KeyFormatVersion: FormatVersion,
 		KeyTool:          h.Tool,
+		KeyNumeric:       h.Numeric,
 		KeyRun:           h.Run,
 		KeyProcess:       h.Process,
 		KeyKind:          h.Kind,
@@ -149,9 +153,9 @@ func parseMeta(path string, raw map[string]string) (*fileMeta, error) {
 		return nil, bad(KeyTable, fmt.Sprintf("is %q, not a gridstage table", m.table))
 	}
 	h := &m.header
-	h.Tool, h.Run, h.Process, h.Kind, h.Method, h.ManifestHash =
-		raw[KeyTool], raw[KeyRun], raw[KeyProcess], raw[KeyKind], raw[KeyMethod], raw[KeyManifestHash]
-	for _, k := range []string{KeyTool, KeyProcess, KeyKind, KeyMethod} {
+	h.Tool, h.Numeric, h.Run, h.Process, h.Kind, h.Method, h.ManifestHash =
+		raw[KeyTool], raw[KeyNumeric], raw[KeyRun], raw[KeyProcess], raw[KeyKind], raw[KeyMethod], raw[KeyManifestHash]
+	for _, k := range []string{KeyTool, KeyNumeric, KeyProcess, KeyKind, KeyMethod} {
 		if raw[k] == "" {
 			return nil, bad(k, "is empty")
 		}

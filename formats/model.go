@@ -25,6 +25,10 @@ type Header struct {
 	ManifestHash string
 	// Tool is the gridstage version; empty means internal/version.Tool.
 	Tool string
+	// Numeric is the numeric version the chains were solved under, which
+	// every spec hash of the set binds (docs/HASHES.md); empty means
+	// internal/version.Numeric. A merge keeps its shards' version.
+	Numeric string
 }
 
 // Record is one chain of a Set: one sweep point at one age.

@@ -1,7 +1,6 @@
 package formats
 
 import (
-	"fmt"
 	"sync/atomic"
 	"testing"
 
@@ -44,7 +43,7 @@ func streamPoints(t testing.TB, dir string, f Format, points, batch int) int64 {
 		t.Fatal(err)
 	}
 	for i := 0; i < points; i++ {
-		r := Record{Point: i, Params: map[string]float64{"draw": float64(i)}, SpecHash: fmt.Sprintf("%064x", i),
+		r := Record{Point: i, Params: map[string]float64{"draw": float64(i)}, SpecHash: specHash(`{}`),
 			Spec: []byte(`{}`), Chain: c, Diag: d, Baseline: &d}
 		if err := w.Append(r); err != nil {
 			t.Fatal(err)

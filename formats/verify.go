@@ -14,6 +14,8 @@ import (
 	"github.com/apache/arrow-go/v18/arrow"
 	"github.com/apache/arrow-go/v18/arrow/array"
 	"github.com/apache/arrow-go/v18/arrow/memory"
+
+	"gridstage/internal/version"
 )
 
 // RowSumTolerance is how far from 1 the sum of a transition row may be.
@@ -360,6 +362,9 @@ func (c *rowChecker) points(rec arrow.RecordBatch, base int64) error {
 			return c.fail(p, -1, row, "empty spec hash")
 		case !isHexHash(chainHash.Value(i)):
 			return c.fail(p, -1, row, "chain hash %q is not a SHA-256 in hex", chainHash.Value(i))
+		case version.SpecHash(c.meta.header.Numeric, []byte(spec.Value(i))) != specHash.Value(i):
+			return c.fail(p, -1, row, "spec hash %s is not the hash of the point's spec under numeric version %s (%s): the spec, its hash or the version was changed",
+				specHash.Value(i), c.meta.header.Numeric, KeyNumeric)
 		}
 		if c.meta.points == 1 && (specHash.Value(i) != c.meta.specHash || spec.Value(i) != c.meta.spec) {
 			return c.fail(p, -1, row, "spec hash or spec differs from the file metadata (%s, %s)", KeySpecHash, KeySpec)

@@ -94,6 +94,9 @@ func Create(dir string, h Header, opt Options) (*Writer, error) {
 	if h.Tool == "" {
 		h.Tool = version.Tool
 	}
+	if h.Numeric == "" {
+		h.Numeric = version.Numeric
+	}
 	h.Params = append([]string(nil), h.Params...)
 	sort.Strings(h.Params)
 	for i, p := range h.Params {

@@ -12,11 +12,7 @@ import (
 // (docs/HASHES.md). Equal hashes mean equal numbers from any build with the
 // same numeric version.
 func SpecHash(canonical []byte) string {
-	h := sha256.New()
-	h.Write([]byte(version.Numeric))
-	h.Write([]byte{'\n'})
-	h.Write(canonical)
-	return hex.EncodeToString(h.Sum(nil))
+	return version.SpecHash(version.Numeric, canonical)
 }
 
 // manifestHash is the hex SHA-256 of the manifest's canonical form: the run

@@ -128,6 +128,8 @@ func checkStamps(dirs []string) (count, jobs int, err error) {
 			count = s.Count
 		}
 		switch {
+		case st.Numeric != first.Numeric:
+			return 0, 0, &InputError{Dir: d, Problem: fmt.Sprintf("was solved under numeric version %s, %s under %s: shards from builds that compute differently cannot be merged; run every shard with the same gridstage", orNone(st.Numeric), dirs[0], orNone(first.Numeric))}
 		case st.ManifestHash != first.ManifestHash:
 			return 0, 0, &InputError{Dir: d, Problem: fmt.Sprintf("comes from another manifest (hash %s, %s has %s)", st.ManifestHash, dirs[0], first.ManifestHash)}
 		case s.Count != count || st.Jobs != first.Jobs:
@@ -284,6 +286,8 @@ func sameHeader(a, b *source) error {
 		diff = fmt.Sprintf("kind %s, method %s, dimension %d against %s, %s, %d", hb.Kind, hb.Method, hb.Dim, ha.Kind, ha.Method, ha.Dim)
 	case !slices.Equal(ha.Params, hb.Params):
 		diff = fmt.Sprintf("swept parameters %v against %v", hb.Params, ha.Params)
+	case ha.Numeric != hb.Numeric:
+		diff = fmt.Sprintf("numeric version %s against %s (run every shard with the same gridstage)", hb.Numeric, ha.Numeric)
 	case ha.Tool != hb.Tool:
 		diff = fmt.Sprintf("tool version %s against %s (run every shard with the same gridstage)", hb.Tool, ha.Tool)
 	}
@@ -291,4 +295,13 @@ func sameHeader(a, b *source) error {
 		return &InputError{Dir: b.r.Ref.Dir, Problem: fmt.Sprintf("process %s does not match %s: %s", ha.Process, a.r.Ref.Dir, diff)}
 	}
 	return nil
+}
+
+// orNone names a missing version (a stamp from a build before numeric
+// versions were recorded).
+func orNone(v string) string {
+	if v == "" {
+		return "(none recorded)"
+	}
+	return v
 }

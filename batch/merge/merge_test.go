@@ -1,8 +1,7 @@
 package merge
 
 import (
-	"crypto/sha256"
-	"encoding/hex"
+	"bytes"
 	"errors"
 	"fmt"
 	"os"
@@ -13,6 +12,7 @@ import (
 	"gridstage/batch"
 	"gridstage/batch/shard"
 	"gridstage/formats"
+	"gridstage/internal/version"
 	"gridstage/solver"
 )
 
@@ -50,8 +50,7 @@ func record(t *testing.T, j job) formats.Record {
 	}
 	bd := solver.Diagnose(b, proc)
 	spec := []byte(fmt.Sprintf(`{"kind":"ar1","process":%q,"rho":%v}`, j.process, j.rho))
-	sum := sha256.Sum256(spec)
-	return formats.Record{Point: j.point, Params: map[string]float64{"rho": j.rho}, SpecHash: hex.EncodeToString(sum[:]),
+	return formats.Record{Point: j.point, Params: map[string]float64{"rho": j.rho}, SpecHash: version.SpecHash(version.Numeric, spec),
 		Spec: spec, Chain: c, Diag: solver.Diagnose(c, proc), Baseline: &bd}
 }
 
@@ -188,6 +187,19 @@ func TestMergeRejectsIncompleteOrMixedShards(t *testing.T) {
 	if err := batch.WriteRecord(failed, rec); err != nil {
 		t.Fatal(err)
 	}
+	// A shard solved by a build under another numeric version: its stamp
+	// (and files) say so; the manifest hash differs too, but the message
+	// must name the numeric versions, the real cause.
+	older := filepath.Join(root, "older-numerics")
+	writeRun(t, older, shard.Shard{Index: 2, Count: 4}, formats.Parquet)
+	stamp, err := os.ReadFile(filepath.Join(older, shard.StampFile))
+	if err != nil {
+		t.Fatal(err)
+	}
+	stamp = bytes.Replace(stamp, []byte(`"numeric_version": "`+version.Numeric+`"`), []byte(`"numeric_version": "0"`), 1)
+	if err := os.WriteFile(filepath.Join(older, shard.StampFile), stamp, 0o644); err != nil {
+		t.Fatal(err)
+	}
 	unstamped := filepath.Join(root, "unfinished")
 	writeRun(t, unstamped, shard.Shard{Index: 4, Count: 4}, formats.Parquet)
 	os.Remove(filepath.Join(unstamped, shard.StampFile))
@@ -201,6 +213,7 @@ func TestMergeRejectsIncompleteOrMixedShards(t *testing.T) {
 		{"missing", dirs[:3], "shard 4/4 missing (got 3 of 4 shard folders)"},
 		{"twice", []string{dirs[0], dirs[1], dirs[1], dirs[2]}, "is shard 2/4, and so is " + dirs[1]},
 		{"other manifest", []string{dirs[0], other, dirs[2], dirs[3]}, "comes from another manifest"},
+		{"other numerics", []string{dirs[0], older, dirs[2], dirs[3]}, "was solved under numeric version 0, " + dirs[0] + " under " + version.Numeric},
 		{"unfinished", []string{dirs[0], dirs[1], dirs[2], unstamped}, "has no shard.json"},
 		{"failed record", []string{dirs[0], dirs[1], failed, dirs[3]}, "did not succeed"},
 		{"output is a shard", dirs, "the output folder is one of the shard folders"},

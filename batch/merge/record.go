@@ -24,7 +24,9 @@ func mergeRecords(dirs []string, jobs int, sets []formats.Result) (*batch.RunRec
 		}
 		if out == nil {
 			out = &batch.RunRecord{Run: r.Run, Manifest: r.Manifest, ManifestHash: r.ManifestHash, Tool: r.Tool,
-				Shard: shard.All.String(), Succeeded: true}
+				Numeric: r.Numeric, Shard: shard.All.String(), Succeeded: true}
+		} else if r.Numeric != out.Numeric {
+			return nil, &InputError{Dir: d, Problem: fmt.Sprintf("its run record says numeric version %s, %s says %s", orNone(r.Numeric), dirs[0], orNone(out.Numeric))}
 		} else if r.ManifestHash != out.ManifestHash {
 			return nil, &InputError{Dir: d, Problem: "its run record names another manifest"}
 		}

@@ -9,6 +9,7 @@ import (
 	"path/filepath"
 
 	"gridstage/internal/atomicfile"
+	"gridstage/internal/version"
 )
 
 // StampFile is the name of the file a finished shard run leaves in its
@@ -24,6 +25,9 @@ type Stamp struct {
 	Shard string `json:"shard"`
 	// ManifestHash identifies the run's manifest.
 	ManifestHash string `json:"manifest_hash"`
+	// Numeric is the numeric version the shard's chains were solved under
+	// (internal/version.Numeric): shards of one run must share it.
+	Numeric string `json:"numeric_version"`
 	// Jobs is the number of jobs in the whole run, ShardJobs the number in
 	// this shard.
 	Jobs      int `json:"jobs"`
@@ -34,7 +38,7 @@ type Stamp struct {
 // manifest hash and job count finished. The file is written under a
 // temporary name, synced and renamed into place.
 func WriteStamp(dir string, s Shard, manifestHash string, jobs int) error {
-	st := Stamp{Shard: s.String(), ManifestHash: manifestHash, Jobs: jobs, ShardJobs: len(s.Jobs(jobs))}
+	st := Stamp{Shard: s.String(), ManifestHash: manifestHash, Numeric: version.Numeric, Jobs: jobs, ShardJobs: len(s.Jobs(jobs))}
 	b, err := json.MarshalIndent(st, "", "  ")
 	if err != nil {
 		return err

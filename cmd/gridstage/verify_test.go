@@ -7,6 +7,7 @@ import (
 	"testing"
 
 	"gridstage/formats"
+	"gridstage/internal/version"
 	"gridstage/solver"
 )
 
@@ -23,7 +24,7 @@ func writeOutput(t *testing.T, f formats.Format) string {
 			t.Fatal(err)
 		}
 		set.Records = append(set.Records, formats.Record{Point: i, Params: map[string]float64{"rho": rho},
-			SpecHash: strings.Repeat("ab", 32), Spec: []byte(`{"rho":` + []string{"0.8", "0.9"}[i] + `}`), Chain: c, Diag: solver.Diagnose(c, p)})
+			SpecHash: version.SpecHash(version.Numeric, []byte(`{"rho":`+[]string{"0.8", "0.9"}[i]+`}`)), Spec: []byte(`{"rho":` + []string{"0.8", "0.9"}[i] + `}`), Chain: c, Diag: solver.Diagnose(c, p)})
 	}
 	if _, err := formats.Write(dir, set, formats.Options{Format: f}); err != nil {
 		t.Fatal(err)

@@ -23,7 +23,7 @@ import { tableFromIPC } from 'apache-arrow';
 const TOL = 1e-12;
 
 const REQUIRED_KEYS = [
-  'gridstage.format_version', 'gridstage.table', 'gridstage.tool_version', 'gridstage.run',
+  'gridstage.format_version', 'gridstage.table', 'gridstage.tool_version', 'gridstage.numeric_version', 'gridstage.run',
   'gridstage.process', 'gridstage.kind', 'gridstage.method', 'gridstage.dim', 'gridstage.params',
   'gridstage.manifest_hash', 'gridstage.points', 'gridstage.rows', 'gridstage.spec_digest',
   'gridstage.content_hash', 'gridstage.metadata_hash',
