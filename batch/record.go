@@ -45,17 +45,17 @@ type FileRecord struct {
 // RunRecord lists what a run did. It holds no times or cache statistics, so
 // that the same manifest gives the same record whatever the machine.
 type RunRecord struct {
-	Run          string       `json:"run"`
-	Manifest     string       `json:"manifest"`
-	ManifestHash string       `json:"manifest_hash"`
-	Tool         string       `json:"tool_version"`
+	Run          string `json:"run"`
+	Manifest     string `json:"manifest"`
+	ManifestHash string `json:"manifest_hash"`
+	Tool         string `json:"tool_version"`
 	// Numeric is the numeric version the chains were solved under
 	// (internal/version.Numeric); every spec hash binds it.
-	Numeric      string       `json:"numeric_version"`
-	Shard        string       `json:"shard"`
-	Succeeded    bool         `json:"succeeded"`
-	Jobs         []JobRecord  `json:"jobs"`
-	Files        []FileRecord `json:"files"`
+	Numeric   string       `json:"numeric_version"`
+	Shard     string       `json:"shard"`
+	Succeeded bool         `json:"succeeded"`
+	Jobs      []JobRecord  `json:"jobs"`
+	Files     []FileRecord `json:"files"`
 }
 
 // Params are a job's swept values, sorted by name. They are kept as a slice

@@ -21,21 +21,21 @@ const FormatVersion = "3"
 // Key/value metadata keys carried by every file (Parquet key/value
 // metadata; Arrow IPC schema metadata).
 const (
-	KeyFormatVersion = "gridstage.format_version" // FormatVersion
-	KeyTable         = "gridstage.table"          // points, transitions, states, diagnostics or summary
-	KeyTool          = "gridstage.tool_version"   // gridstage version that wrote the file
+	KeyFormatVersion = "gridstage.format_version"  // FormatVersion
+	KeyTable         = "gridstage.table"           // points, transitions, states, diagnostics or summary
+	KeyTool          = "gridstage.tool_version"    // gridstage version that wrote the file
 	KeyNumeric       = "gridstage.numeric_version" // numeric version the chains were solved under
-	KeyRun           = "gridstage.run"            // run name
-	KeyProcess       = "gridstage.process"        // process name
-	KeyKind          = "gridstage.kind"           // process kind
-	KeyMethod        = "gridstage.method"         // discretization method of the primary chains
-	KeyDim           = "gridstage.dim"            // state dimension, decimal
-	KeyParams        = "gridstage.params"         // JSON array of swept parameter names, sorted
-	KeyManifestHash  = "gridstage.manifest_hash"  // manifest hash (may be empty)
-	KeyPoints        = "gridstage.points"         // number of sweep points, decimal
-	KeyRows          = "gridstage.rows"           // rows in this file, decimal
-	KeySpecDigest    = "gridstage.spec_digest"    // digest of the per-point spec hashes (docs/HASHES.md)
-	KeyContentHash   = "gridstage.content_hash"   // content hash of this file's table (docs/HASHES.md)
+	KeyRun           = "gridstage.run"             // run name
+	KeyProcess       = "gridstage.process"         // process name
+	KeyKind          = "gridstage.kind"            // process kind
+	KeyMethod        = "gridstage.method"          // discretization method of the primary chains
+	KeyDim           = "gridstage.dim"             // state dimension, decimal
+	KeyParams        = "gridstage.params"          // JSON array of swept parameter names, sorted
+	KeyManifestHash  = "gridstage.manifest_hash"   // manifest hash (may be empty)
+	KeyPoints        = "gridstage.points"          // number of sweep points, decimal
+	KeyRows          = "gridstage.rows"            // rows in this file, decimal
+	KeySpecDigest    = "gridstage.spec_digest"     // digest of the per-point spec hashes (docs/HASHES.md)
+	KeyContentHash   = "gridstage.content_hash"    // content hash of this file's table (docs/HASHES.md)
 
 	// KeySpecHash and KeySpec are present when the set has exactly one
 	// point: its spec hash and canonical spec. For sweeps, the per-point
