@@ -49,7 +49,13 @@ func (s *setWriter) append(job manifests.Job, sol manifests.Solution) (string, e
 			return "", fmt.Errorf("batch: %s point %d: %w", job.Process, job.Point, err)
 		}
 	}
-	return formats.ChainHash(recs), nil
+	return formats.ChainHash(recs), nil // as ChainHash(job, sol)
+}
+
+// ChainHash returns the chain hash of a solved job as a run records it in
+// run.json and the points table (docs/HASHES.md, "Chain hash").
+func ChainHash(job manifests.Job, sol manifests.Solution) string {
+	return formats.ChainHash(records(job, sol))
 }
 
 // records turns a solved job into the records of its output set: one

@@ -21,6 +21,8 @@ type chainReport struct {
 	// MomentsHeading replaces "unconditional moments" above the table of
 	// the chain's moments (for a life-cycle age, the next age's marginal).
 	MomentsHeading string
+	// Provenance identifies a chain made by `discretize`; nil elsewhere.
+	Provenance *provenance
 }
 
 // chainJSON is the JSON shape (contract: grid is an array of state vectors,
@@ -36,6 +38,7 @@ type chainJSON struct {
 	Matched     []int              `json:"matched"`
 	Diagnostics solver.Diagnostics `json:"diagnostics"`
 	Baseline    *baselineJSON      `json:"baseline,omitempty"`
+	*provenance
 }
 
 type baselineJSON struct {
@@ -66,7 +69,7 @@ func (r chainReport) print(w io.Writer, asJSON bool) error {
 		j := chainJSON{
 			Kind: r.Kind, Process: r.Process, Method: r.Chain.Method.String(), Moments: r.Chain.Moments,
 			Grid: gridRows(r.Chain), Transition: transitionRows(r.Chain), Stationary: r.Diag.Stationary,
-			Matched: r.Chain.Matched, Diagnostics: r.Diag,
+			Matched: r.Chain.Matched, Diagnostics: r.Diag, provenance: r.Provenance,
 		}
 		if r.Baseline != nil {
 			j.Baseline = &baselineJSON{Method: r.Baseline.Method.String(), Grid: gridRows(r.Baseline),
@@ -151,6 +154,9 @@ func (r chainReport) printText(w io.Writer) error {
 	}
 	if k := c.Fallbacks(); k > 0 {
 		fmt.Fprintf(w, "\nwarning: %d state(s) could not match all %d moments (the grid cannot carry them there); see the matched column\n", k, c.Moments)
+	}
+	if r.Provenance != nil {
+		r.Provenance.printText(w)
 	}
 	return nil
 }

@@ -103,6 +103,35 @@ func (m *methodSettings) settings(cmd *cobra.Command) (solver.Settings, error) {
 	return solver.Settings{States: m.states, Moments: m.moments, Method: method, Grid: grid, Width: m.width, Floden: m.floden}, nil
 }
 
+// entry adds the shared flags to a manifest process entry: states and
+// method always, the others when given (the manifest fills in the same
+// defaults as these flags).
+func (m *methodSettings) entry(cmd *cobra.Command, e map[string]any) map[string]any {
+	e["states"] = m.states
+	method := m.method
+	if method == "" {
+		method = "maxent"
+	}
+	e["method"] = method
+	fs := cmd.Flags()
+	if method == "maxent" {
+		e["grid"] = m.grid
+	}
+	if fs.Changed("moments") {
+		e["moments"] = m.moments
+	}
+	if fs.Changed("width") {
+		e["width"] = m.width
+	}
+	if m.floden {
+		e["floden"] = true
+	}
+	if m.compare != "" {
+		e["compare"] = m.compare
+	}
+	return e
+}
+
 // baseline returns the comparison method, or false for none.
 func (m *methodSettings) baseline(main solver.Method) (solver.Method, bool, error) {
 	switch m.compare {

@@ -34,22 +34,19 @@ func newAR1Cmd() *cobra.Command {
 			if err := p.Validate(); err != nil {
 				return flagError(err, paramFlags)
 			}
-			c, err := p.Discretize(s)
-			if err != nil {
-				return flagError(err, paramFlags)
-			}
-			out := chainReport{Kind: "ar1", Process: ar1Params(p, shock), Chain: c, Diag: solver.Diagnose(c, p)}
-			if b, ok, err := ms.baseline(s.Method); err != nil {
+			if _, _, err := ms.baseline(s.Method); err != nil {
 				return err
-			} else if ok {
-				bs := solver.Settings{States: s.States, Method: b}
-				bc, err := p.Discretize(bs)
-				if err != nil {
-					return flagError(err, paramFlags)
-				}
-				bd := solver.Diagnose(bc, p)
-				out.Baseline, out.BaselineDiag = bc, &bd
 			}
+			entry := ms.entry(cmd, map[string]any{"kind": "ar1", "rho": rho, "sigma": sigma, "mean": mean})
+			if shock.family != "normal" {
+				entry["innovation"] = shock.law()
+			}
+			sol, prov, err := solveEntry(entry)
+			if err != nil {
+				return err
+			}
+			out := chainReport{Kind: "ar1", Process: ar1Params(p, shock), Chain: sol.Chain, Diag: sol.Diagnostics,
+				Baseline: sol.Baseline, BaselineDiag: sol.BaselineDiagnostics, Provenance: &prov}
 			return out.print(cmd.OutOrStdout(), ms.json)
 		},
 	}

@@ -30,23 +30,21 @@ Distributions and their parameters:
   laplace    --loc, --scale        density exp(-|x-loc|/scale)/(2 scale)`,
 		Args: cobra.NoArgs,
 		RunE: func(cmd *cobra.Command, _ []string) error {
-			s, err := ms.settings(cmd)
-			if err != nil {
+			if _, err := ms.settings(cmd); err != nil {
 				return err
 			}
 			d, err := shock.distribution()
 			if err != nil {
 				return err
 			}
-			if s.Grid == solver.GridGaussHermite && !cmd.Flags().Changed("grid") {
-				s.Grid = solver.GridEven
-			}
-			p := solver.IID{Dist: d}
-			out, err := p.Discretize(s)
+			entry := ms.entry(cmd, map[string]any{"kind": "iid", "distribution": shock.distributionLaw()})
+			sol, prov, err := solveEntry(entry)
 			if err != nil {
-				return flagError(err, paramFlags)
+				return err
 			}
-			return printIID(cmd.OutOrStdout(), shock.family, out, p, ms.json)
+			c := sol.Chain
+			out := &solver.Discrete{Nodes: c.Grid, Weights: c.Row(0), Moments: c.Moments, Matched: c.Matched[0]}
+			return printIID(cmd.OutOrStdout(), shock.family, out, solver.IID{Dist: d}, prov, ms.json)
 		},
 	}
 	fs := cmd.Flags()
@@ -130,6 +128,7 @@ type iidJSON struct {
 	Weights     []float64   `json:"weights"`
 	Moments     int         `json:"moments"`
 	Diagnostics iidDiag     `json:"diagnostics"`
+	provenance
 }
 
 type iidDiag struct {
@@ -138,7 +137,7 @@ type iidDiag struct {
 	True     solver.Moments `json:"true"`
 }
 
-func printIID(w io.Writer, family string, d *solver.Discrete, p solver.IID, asJSON bool) error {
+func printIID(w io.Writer, family string, d *solver.Discrete, p solver.IID, prov provenance, asJSON bool) error {
 	got := solver.WeightedMoments(d.Weights, d.Nodes)
 	truth := p.Conditional(nil)
 	if asJSON {
@@ -149,7 +148,7 @@ func printIID(w io.Writer, family string, d *solver.Discrete, p solver.IID, asJS
 		enc := json.NewEncoder(w)
 		enc.SetIndent("", "  ")
 		return enc.Encode(iidJSON{Kind: "iid", Dist: family, Grid: grid, Weights: d.Weights, Moments: d.Moments,
-			Diagnostics: iidDiag{Matched: d.Matched, Discrete: got, True: truth}})
+			Diagnostics: iidDiag{Matched: d.Matched, Discrete: got, True: truth}, provenance: prov})
 	}
 	fmt.Fprintf(w, "%s distribution, %d points, %d of %d moments matched\n\n", family, len(d.Nodes), d.Matched, d.Moments)
 	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)
@@ -171,5 +170,6 @@ func printIID(w io.Writer, family string, d *solver.Discrete, p solver.IID, asJS
 	if d.Matched < d.Moments {
 		fmt.Fprintf(w, "\nwarning: only %d of %d moments could be matched on this grid\n", d.Matched, d.Moments)
 	}
+	prov.printText(w)
 	return nil
 }

@@ -54,21 +54,15 @@ VAR construction.`,
 			if err != nil {
 				return err
 			}
-			c, err := p.Discretize(s)
-			if err != nil {
-				return flagError(err, paramFlags)
-			}
-			out := varReport{Process: p, Settings: s, Chain: c, Diag: solver.DiagnoseVector(c, p)}
-			if b, ok, err := vs.baseline(s.Method); err != nil {
+			if _, _, err := vs.baseline(s.Method); err != nil {
 				return err
-			} else if ok {
-				bc, err := p.Discretize(solver.Settings{States: s.States, Method: b})
-				if err != nil {
-					return flagError(err, paramFlags)
-				}
-				bd := solver.DiagnoseVector(bc, p)
-				out.Baseline, out.BaselineDiag = bc, &bd
 			}
+			sol, prov, err := solveEntry(vs.entry(cmd, p))
+			if err != nil {
+				return err
+			}
+			out := varReport{Process: p, Settings: s, Chain: sol.Chain, Diag: *sol.Vector,
+				Baseline: sol.Baseline, BaselineDiag: sol.BaselineVector, Provenance: prov}
 			return out.print(cmd.OutOrStdout(), vs.json)
 		},
 	}
@@ -123,6 +117,37 @@ func (v *varSettings) settings(cmd *cobra.Command, d int) (solver.Settings, erro
 	return solver.Settings{States: v.states, Method: method, Moments: v.moments, Grid: grid, Width: v.width, Axes: axes}, nil
 }
 
+// entry returns the process as a manifest entry: matrices as lists of
+// rows, the flags given (the manifest fills in the same defaults).
+func (v *varSettings) entry(cmd *cobra.Command, p solver.VAR) map[string]any {
+	d := p.Dim()
+	rows := func(m []float64) [][]float64 {
+		out := make([][]float64, d)
+		for i := range out {
+			out[i] = m[i*d : (i+1)*d]
+		}
+		return out
+	}
+	e := map[string]any{"kind": "var", "coef": rows(p.Coef), "cov": rows(p.Cov), "states": v.states, "method": v.method}
+	if p.Intercept != nil {
+		e["intercept"] = p.Intercept
+	}
+	fs := cmd.Flags()
+	if v.method == "maxent" {
+		e["grid"], e["grid_axes"] = v.grid, v.axes
+	}
+	if fs.Changed("moments") {
+		e["moments"] = v.moments
+	}
+	if fs.Changed("width") {
+		e["width"] = v.width
+	}
+	if v.compare != "" {
+		e["compare"] = v.compare
+	}
+	return e
+}
+
 // baseline returns the comparison method, or false for none.
 func (v *varSettings) baseline(main solver.Method) (solver.Method, bool, error) {
 	switch v.compare {
@@ -149,6 +174,7 @@ type varReport struct {
 	Diag         solver.VectorDiagnostics
 	Baseline     *solver.Chain
 	BaselineDiag *solver.VectorDiagnostics
+	Provenance   provenance
 }
 
 // varJSON has the shape of the ar1 output (contract: grid is an array of
@@ -165,6 +191,7 @@ type varJSON struct {
 	Matched     []int                    `json:"matched"`
 	Diagnostics solver.VectorDiagnostics `json:"diagnostics"`
 	Baseline    *varBaselineJSON         `json:"baseline,omitempty"`
+	provenance
 }
 
 type varBaselineJSON struct {
@@ -178,7 +205,7 @@ func (r varReport) print(w io.Writer, asJSON bool) error {
 	if asJSON {
 		j := varJSON{Kind: "var", Process: varParams(r.Process), Method: r.Chain.Method.String(), Moments: r.Chain.Moments,
 			Grid: gridRows(r.Chain), Transition: transitionRows(r.Chain), Stationary: r.Diag.Stationary,
-			Matched: r.Chain.Matched, Diagnostics: r.Diag}
+			Matched: r.Chain.Matched, Diagnostics: r.Diag, provenance: r.Provenance}
 		if r.Chain.Method == solver.MaxEnt {
 			j.GridAxes = r.Settings.Axes.String()
 		}
@@ -291,6 +318,7 @@ func (r varReport) printText(w io.Writer) error {
 	if k := c.Fallbacks(); k > 0 {
 		fmt.Fprintf(w, "\nwarning: %d state(s) could not match the full moment set (the grid cannot carry it there); see the matched column\n", k)
 	}
+	r.Provenance.printText(w)
 	return nil
 }
 

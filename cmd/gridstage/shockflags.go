@@ -78,3 +78,41 @@ func positive(flag string, v float64) error {
 	}
 	return nil
 }
+
+// components lists the mixture flags as manifest components.
+func (s *shockFlags) components() []map[string]any {
+	out := make([]map[string]any, len(s.mixWeights))
+	for i := range out {
+		out[i] = map[string]any{"weight": s.mixWeights[i], "mean": s.mixMeans[i], "sd": s.mixSDs[i]}
+	}
+	return out
+}
+
+// law returns the innovation flags as a manifest innovation law.
+func (s *shockFlags) law() map[string]any {
+	switch s.family {
+	case "t":
+		return map[string]any{"law": "t", "nu": s.nu}
+	case "mixture":
+		return map[string]any{"law": "mixture", "components": s.components()}
+	}
+	return map[string]any{"law": s.family}
+}
+
+// distributionLaw returns the distribution flags of `discretize iid` as a
+// manifest distribution.
+func (s *shockFlags) distributionLaw() map[string]any {
+	switch s.family {
+	case "normal":
+		return map[string]any{"law": "normal", "mean": s.mu, "sd": s.sigma}
+	case "lognormal":
+		return map[string]any{"law": "lognormal", "log_mean": s.mu, "log_sd": s.sigma}
+	case "beta":
+		return map[string]any{"law": "beta", "alpha": s.alpha, "beta": s.beta, "lower": s.lo, "upper": s.hi}
+	case "mixture":
+		return map[string]any{"law": "mixture", "components": s.components()}
+	case "t":
+		return map[string]any{"law": "t", "nu": s.nu, "location": s.loc, "scale": s.scale}
+	}
+	return map[string]any{"law": "laplace", "location": s.loc, "scale": s.scale}
+}

@@ -1,0 +1,88 @@
+package main
+
+import (
+	"encoding/json"
+	"errors"
+	"fmt"
+	"io"
+	"regexp"
+	"strings"
+
+	"gridstage/batch"
+	"gridstage/internal/version"
+	"gridstage/manifests"
+)
+
+// provenance identifies a chain made on the command line exactly as `run`
+// identifies the same process in run.json: the canonical spec, its spec
+// hash, the chain hash, and the numeric and tool versions.
+type provenance struct {
+	Spec      json.RawMessage `json:"spec"`
+	SpecHash  string          `json:"spec_hash"`
+	ChainHash string          `json:"chain_hash"`
+	Numeric   string          `json:"numeric_version"`
+	Tool      string          `json:"tool_version"`
+}
+
+// solveEntry discretizes a process given as a manifest process entry (the
+// flags of `discretize` turned into manifest keys) through the same path as
+// `run`: canonical spec and spec hash from package manifests, then the
+// job's solve. The flags were checked before, so an error here is a flag
+// combination the manifest rules reject; it is reported as bad input.
+func solveEntry(entry map[string]any) (manifests.Solution, provenance, error) {
+	b, err := json.Marshal(entry)
+	if err != nil {
+		return manifests.Solution{}, provenance{}, err
+	}
+	job, err := manifests.ParseSpec(b)
+	if err != nil {
+		return manifests.Solution{}, provenance{}, entryError(err)
+	}
+	prob, err := job.Build()
+	if err != nil {
+		return manifests.Solution{}, provenance{}, err
+	}
+	sol, err := prob.Solve()
+	if err != nil {
+		return manifests.Solution{}, provenance{}, flagError(err, paramFlags)
+	}
+	return sol, provenance{Spec: json.RawMessage(job.Canonical), SpecHash: job.SpecHash,
+		ChainHash: batch.ChainHash(job, sol), Numeric: version.Numeric, Tool: version.Tool}, nil
+}
+
+// printText ends the text output with the chain's identity.
+func (p provenance) printText(w io.Writer) {
+	fmt.Fprintf(w, "\nspec hash %s\nchain hash %s\nnumeric version %s, gridstage %s\n", p.SpecHash, p.ChainHash, p.Numeric, p.Tool)
+}
+
+// entryFlags maps manifest keys (the last part of a field path, indices
+// removed) to the flags of `discretize` that set them, where they differ.
+var entryFlags = map[string]string{
+	"log_mean": "mu", "log_sd": "sigma", "lower": "lo", "upper": "hi", "location": "loc",
+	"grid_axes": "grid-axes", "components": "mix-weights", "weight": "mix-weights", "sd": "mix-sds",
+}
+
+var indexPart = regexp.MustCompile(`\[\d+\]`)
+
+// entryError reports the first problem the manifest rules find with the
+// flags' process as bad input naming the flag.
+func entryError(err error) error {
+	var list manifests.ErrorList
+	if !errors.As(err, &list) || len(list) == 0 || list[0].Field == "" {
+		return badInput("these flags describe no valid process: %v", err)
+	}
+	e := list[0]
+	path := strings.Split(indexPart.ReplaceAllString(e.Field, ""), ".")
+	key := path[len(path)-1]
+	switch {
+	case path[0] == "distribution" && key == "mean":
+		key = "mu"
+	case path[0] == "distribution" && key == "sd":
+		key = "sigma"
+	case path[0] == "innovation" && key == "mean":
+		key = "mix-means"
+	case entryFlags[key] != "":
+		key = entryFlags[key]
+	}
+	return badInput("--%s %s", key, e.Msg)
+}
