@@ -131,7 +131,8 @@ func (p AR1) Discretize(s Settings) (*Chain, error) {
 	case MaxEnt:
 		nodes, logW := placeGrid(s.Grid, n, p.Mean, sdY, s.Width, Normal{p.Mean, sdY})
 		setLaw(nodes)
-		maxentRows(nodes, logW, law, L, c.Transition, c.Matched)
+		c.Certificates = make([]Certificate, n)
+		maxentRows(nodes, logW, law, L, c.Transition, c.Matched, c.Certificates)
 		c.Grid = nodes
 	case Tauchen:
 		width := s.Width

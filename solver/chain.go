@@ -19,6 +19,19 @@ type Chain struct {
 	// Matched[i] is the number of leading conditional moments (mean,
 	// variance, skewness, kurtosis, …) matched exactly in state i.
 	Matched []int
+	// Certificates[i] says why state i matched Matched[i] moments (solved,
+	// or the next level proven infeasible); nil for methods that do not
+	// solve for moments.
+	Certificates []Certificate
+}
+
+// Certificate returns the certificate of state i (CertNone when the chain
+// keeps none).
+func (c *Chain) Certificate(i int) Certificate {
+	if c.Certificates == nil {
+		return CertNone
+	}
+	return c.Certificates[i]
 }
 
 // States returns the number of states N.

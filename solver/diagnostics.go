@@ -37,6 +37,8 @@ type StateCheck struct {
 	AbsErr  Moments   `json:"abs_error"`
 	RelErr  Moments   `json:"std_error"`
 	Matched int       `json:"matched"`
+	// Certificate says why Matched moments were matched (see Certificate).
+	Certificate Certificate `json:"certificate"`
 }
 
 // Diagnostics compares a chain with the process it approximates.
@@ -74,7 +76,7 @@ func Diagnose(c *Chain, truth Truth) Diagnostics {
 		rel := Moments{abs.Mean / sd, abs.Var / tm.Var, abs.Skew, abs.Kurt / tm.Kurt}
 		d.States[i] = StateCheck{
 			Level: append([]float64(nil), c.State(i)...), Chain: cm, True: tm,
-			AbsErr: abs, RelErr: rel, Matched: c.Matched[i],
+			AbsErr: abs, RelErr: rel, Matched: c.Matched[i], Certificate: c.Certificate(i),
 		}
 		d.WorstRelErr.Mean = math.Max(d.WorstRelErr.Mean, math.Abs(rel.Mean))
 		d.WorstRelErr.Var = math.Max(d.WorstRelErr.Var, math.Abs(rel.Var))

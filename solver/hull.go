@@ -16,6 +16,15 @@ func separated(dev []float64, n, L int) bool {
 	return ws.run(dev, n, L)
 }
 
+// separator runs the same test and returns the separating direction w
+// (valid until the next call), or nil when no certificate was found.
+func (s *wolfe) separator(dev []float64, n, L int) []float64 {
+	if s.run(dev, n, L) {
+		return s.w
+	}
+	return nil
+}
+
 // wolfe holds the working set of Wolfe's algorithm: at most L+1 points
 // whose affine minimum-norm point is sought in each minor cycle.
 type wolfe struct {

@@ -11,6 +11,8 @@ type Discrete struct {
 	Nodes, Weights []float64
 	// Moments is the number of moments requested; Matched the number matched.
 	Moments, Matched int
+	// Certificate says why Matched moments were matched (see Certificate).
+	Certificate Certificate
 }
 
 // Discretize returns a discrete distribution with s.States points whose
@@ -65,8 +67,9 @@ func (p IID) Discretize(s Settings) (*Discrete, error) {
 	law := conditional{Mean: []float64{mean}, SD: []float64{sd}, Shock: shock}
 	w := make([]float64, n)
 	matched := []int{0}
-	maxentRows(nodes, logW, law, L, w, matched)
-	return &Discrete{Nodes: nodes, Weights: w, Moments: L, Matched: matched[0]}, nil
+	certs := []Certificate{CertNone}
+	maxentRows(nodes, logW, law, L, w, matched, certs)
+	return &Discrete{Nodes: nodes, Weights: w, Moments: L, Matched: matched[0], Certificate: certs[0]}, nil
 }
 
 // Conditional returns the distribution's moments (they do not depend on x).
@@ -89,10 +92,11 @@ func (p IID) Unconditional() Summary {
 func (d *Discrete) Chain() *Chain {
 	n := len(d.Nodes)
 	c := &Chain{Dim: 1, Grid: append([]float64(nil), d.Nodes...), Transition: make([]float64, n*n),
-		Method: MaxEnt, Moments: d.Moments, Matched: make([]int, n)}
+		Method: MaxEnt, Moments: d.Moments, Matched: make([]int, n), Certificates: make([]Certificate, n)}
 	for i := 0; i < n; i++ {
 		copy(c.Transition[i*n:(i+1)*n], d.Weights)
 		c.Matched[i] = d.Matched
+		c.Certificates[i] = d.Certificate
 	}
 	return c
 }

@@ -110,7 +110,9 @@ type AgeChain struct {
 	// InitialMoments is the number of moments of z_0 requested and
 	// InitialMatched the number matched by Initial.
 	InitialMoments, InitialMatched int
-	Method                         Method
+	// InitialCertificate says why InitialMatched moments were matched.
+	InitialCertificate Certificate
+	Method             Method
 }
 
 // Transitions returns T, the number of transition matrices.
@@ -206,7 +208,8 @@ func (p LifeCycle) Discretize(s Settings) (*AgeChain, error) {
 		}
 		switch s.Method {
 		case MaxEnt:
-			maxentRows(grids[t+1], logWs[t+1], law, L, c.Transition, c.Matched)
+			c.Certificates = make([]Certificate, n)
+			maxentRows(grids[t+1], logWs[t+1], law, L, c.Transition, c.Matched, c.Certificates)
 		case Rouwenhorst:
 			pt := (1 + p.Rho[t]*math.Sqrt(vars[t]/vars[t+1])) / 2
 			rouwenhorstMatrix(n, pt, pt, c.Transition)
@@ -228,8 +231,9 @@ func (p LifeCycle) Discretize(s Settings) (*AgeChain, error) {
 	switch s.Method {
 	case MaxEnt:
 		m := []int{0}
-		maxentRows(grids[0], logWs[0], law0, L0, ac.Initial, m)
-		ac.InitialMatched = m[0]
+		cert := []Certificate{CertNone}
+		maxentRows(grids[0], logWs[0], law0, L0, ac.Initial, m, cert)
+		ac.InitialMatched, ac.InitialCertificate = m[0], cert[0]
 	case Rouwenhorst:
 		for i := range ac.Initial {
 			ac.Initial[i] = binomial(n-1, i) * math.Pow(0.5, float64(n-1))

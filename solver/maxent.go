@@ -55,26 +55,6 @@ func (w *Dual) Solve(logq, dev []float64, L int, lam0, p []float64) (lam []float
 	return w.solve(logq, dev, L, lam0, p, dualMaxIter)
 }
 
-// solveOrProve solves the dual from start in stages: a short Newton run of
-// quick iterations, which is enough for feasible targets away from the
-// hull's boundary; then, only if that fails, the caller's exact test that
-// the target lies outside the hull (infeasible; it spares the long
-// divergent runs), else the full budget from where Newton stopped, else a
-// cold start.
-func (w *Dual) solveOrProve(logq, dev []float64, L int, start, p []float64, quick int, infeasible func() bool) ([]float64, bool) {
-	lam, ok := w.solve(logq, dev, L, start, p, quick)
-	if ok {
-		return lam, true
-	}
-	if infeasible() {
-		return lam, false
-	}
-	if lam, ok = w.Solve(logq, dev, L, lam, p); ok {
-		return lam, true
-	}
-	return w.Solve(logq, dev, L, nil, p)
-}
-
 // solve is Solve with an iteration budget.
 //
 // Each iteration makes one pass over the grid for the gradient and the
@@ -116,8 +96,15 @@ func (w *Dual) solve(logq, dev []float64, L int, lam0, p []float64, maxIter int)
 			break
 		}
 		if !cholesky(w.hess, w.chol, L) {
-			ok = gmax <= dualAccept
-			break
+			if gmax <= dualAccept {
+				ok = true
+				break
+			}
+			// A numerically singular Hessian: p sits on too few points to
+			// span the moment functions (a cold start at the hull's edge).
+			// Levenberg-Marquardt damping keeps the step a descent
+			// direction; the log-step cap below bounds its length.
+			w.damp(L)
 		}
 		cholSolve(w.chol, L, w.grad, w.step)
 		var slope float64
@@ -130,21 +117,24 @@ func (w *Dual) solve(logq, dev []float64, L int, lam0, p []float64, maxIter int)
 		// step; there Newton's full step is safe (quadratic convergence) and
 		// is taken unchecked.
 		quadratic := -slope <= 1e-10*(1+math.Abs(f))
-		// Cap the step so no log-probability moves by more than maxLogStep:
-		// at a nearly singular Hessian (a coarse grid) the raw Newton step
-		// is huge and halving it down would cost dozens of evaluations.
-		var big float64
+		// Cap the step so that no log-probability rises, to first order,
+		// above maxLogStep: at a nearly singular Hessian (a coarse grid, a
+		// cold start at the hull's edge) the raw Newton step is huge and
+		// halving it down would cost dozens of evaluations. Points that
+		// fall lose mass they barely had (the line search judges the
+		// rest); a point far down the tail may rise a long way before it
+		// matters. The mean shift under p, Σ_j p_j s_j = slope, is what
+		// the normalizer absorbs.
+		t := 1.0
 		for j := 0; j < n; j++ {
 			var s float64
 			for k, d := range dev[j*L : j*L+L] {
 				s += w.step[k] * d
 			}
 			w.shift[j] = s
-			big = math.Max(big, math.Abs(s))
-		}
-		t := 1.0
-		if big > maxLogStep {
-			t = maxLogStep / big
+			if rise := s - slope; w.a[j]-f+t*rise > maxLogStep {
+				t = (maxLogStep - (w.a[j] - f)) / rise
+			}
 		}
 		accepted := false
 		for ls := 0; ls < 40; ls++ {
@@ -176,6 +166,29 @@ func (w *Dual) solve(logq, dev []float64, L int, lam0, p []float64, maxIter int)
 	return w.lam, ok && allFinite(p)
 }
 
+// damp adds μ·(diag H + ν) to the Hessian, with μ raised until the
+// Cholesky factorization succeeds; ν keeps the damping positive where a
+// diagonal entry vanished (every weight but one underflowed).
+func (w *Dual) damp(L int) {
+	var scale float64
+	for r := 0; r < L; r++ {
+		scale = math.Max(scale, w.hess[r*L+r])
+	}
+	nu := math.Max(scale, 1e-300)
+	for mu := 1e-12; ; mu *= 100 {
+		for r := 0; r < L; r++ {
+			w.trial[r] = w.hess[r*L+r]
+			w.hess[r*L+r] += mu * (w.hess[r*L+r] + nu)
+		}
+		if cholesky(w.hess, w.chol, L) || mu > 1e30 {
+			return
+		}
+		for r := 0; r < L; r++ {
+			w.hess[r*L+r] = w.trial[r]
+		}
+	}
+}
+
 // normalize sets p_j = exp(a_j)/Σ exp(a) and returns log Σ exp(a),
 // computed stably around the largest a_j.
 func normalize(a, p []float64) float64 {
@@ -201,8 +214,10 @@ func normalize(a, p []float64) float64 {
 // moments sets w.grad = Σ_j p_j dev_j (the current moment error) and the
 // lower triangle of w.hess = Σ_j p_j dev_j dev_jᵀ − g gᵀ (the covariance of
 // the moment functions under p) in one pass. The uncentred form loses
-// digits only when g is large, far from the optimum, where the Hessian
-// need not be accurate; near it g → 0 and nothing cancels.
+// digits when g is large against the spread of the moment functions (far
+// from the optimum, or where p sits almost wholly on one point, as at the
+// hull's edge); when a diagonal entry keeps fewer than about eight of its
+// sixteen digits, the covariance is recomputed about g in a second pass.
 func (w *Dual) moments(dev []float64, n, L int) {
 	clear(w.grad)
 	clear(w.hess)
@@ -220,9 +235,34 @@ func (w *Dual) moments(dev []float64, n, L int) {
 			}
 		}
 	}
+	cancelled := false
 	for r := 0; r < L; r++ {
+		raw := w.hess[r*L+r]
 		for c := 0; c <= r; c++ {
 			w.hess[r*L+c] -= w.grad[r] * w.grad[c]
+		}
+		cancelled = cancelled || !(w.hess[r*L+r] > 1e-8*raw)
+	}
+	if cancelled {
+		w.centredHessian(dev, n, L)
+	}
+}
+
+// centredHessian recomputes w.hess as Σ_j p_j (dev_j − g)(dev_j − g)ᵀ,
+// which has no cancellation.
+func (w *Dual) centredHessian(dev []float64, n, L int) {
+	clear(w.hess)
+	for j := 0; j < n; j++ {
+		pj := w.p[j]
+		if pj == 0 {
+			continue
+		}
+		row := dev[j*L : j*L+L]
+		for r := 0; r < L; r++ {
+			dr := pj * (row[r] - w.grad[r])
+			for c := 0; c <= r; c++ {
+				w.hess[r*L+c] += dr * (row[c] - w.grad[c])
+			}
 		}
 	}
 }
@@ -285,8 +325,9 @@ func cholSolve(l []float64, L int, b, x []float64) {
 	}
 }
 
-// maxLogStep bounds the change of any log-probability in one Newton step
-// (tuned on AR(1) chains with ρ from 0.5 to 0.99: smaller caps slow the
+// maxLogStep bounds, to first order, the log-probability any point may
+// reach in one Newton step: a point near probability one rises by at most
+// maxLogStep, one far down the tail further (the cap was tuned on AR(1) chains with ρ from 0.5 to 0.99: smaller caps slow the
 // far-from-optimum phase, larger ones waste evaluations on overflowing
 // trial points).
 const maxLogStep = 50.0

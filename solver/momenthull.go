@@ -4,7 +4,7 @@ import "math"
 
 // maxHullFacets bounds the facets the exact feasibility test enumerates;
 // beyond it (fine grids, many moments) infeasibility is left to Newton.
-const maxHullFacets = 5000
+const maxHullFacets = 50000
 
 // powerMomentsFeasible decides whether standardized power-moment targets
 // t_k = E z^k (k = 1..L) can be matched by a distribution with positive
@@ -21,12 +21,26 @@ const maxHullFacets = 5000
 // decided is false when the grid has too many facets to enumerate cheaply;
 // then feasible is true and the dual solver decides.
 func powerMomentsFeasible(z, targets []float64) (feasible, decided bool) {
+	y, decided := powerMomentsSeparator(z, targets)
+	return y == nil, decided
+}
+
+// powerMomentsSeparator runs the facet test of powerMomentsFeasible and
+// returns, for a target outside the interior, the direction y (length L)
+// of the violated facet in the coordinates of fillDeviations: with
+// dev_jk = z_j^{k+1} − t_k, y·dev_j = ±(P_S(z_j) − E P_S), which is ≥ 0 up
+// to the target's distance from the facet. y is nil for an interior target
+// or an undecided test. With n ≤ L points (no interior) y is the direction
+// of the first moment, which need not separate; decided is true.
+func powerMomentsSeparator(z, targets []float64) (y []float64, decided bool) {
 	n, L := len(z), len(targets)
 	if n <= L {
-		return false, true
+		y = make([]float64, L)
+		y[0] = 1
+		return y, true
 	}
 	if binomial(n, (L+1)/2) > maxHullFacets {
-		return true, false
+		return nil, false
 	}
 	moments := make([]float64, L+1) // E z^0..z^L
 	moments[0] = 1
@@ -34,6 +48,7 @@ func powerMomentsFeasible(z, targets []float64) (feasible, decided bool) {
 	coef := make([]float64, L+1)
 	members := make([]int, 0, L)
 	inside := true
+	sign := 1.0
 	var rec func(i, runStart int)
 	rec = func(i, runStart int) {
 		if !inside {
@@ -44,7 +59,7 @@ func powerMomentsFeasible(z, targets []float64) (feasible, decided bool) {
 			if runStart > 0 && last < n-1 && (last-runStart+1)%2 == 1 {
 				return // an interior run of odd length: not a facet
 			}
-			inside = facetAdmits(z, members, moments, coef)
+			inside, sign = facetAdmits(z, members, moments, coef)
 			return
 		}
 		if n-i < L-len(members) {
@@ -66,12 +81,20 @@ func powerMomentsFeasible(z, targets []float64) (feasible, decided bool) {
 		rec(i+1, -1)
 	}
 	rec(0, -1)
-	return inside, true
+	if inside {
+		return nil, true
+	}
+	y = make([]float64, L)
+	for k := range y {
+		y[k] = sign * coef[k+1]
+	}
+	return y, true
 }
 
 // facetAdmits reports whether the targets lie strictly on the inner side of
-// the facet through the members (ascending indices).
-func facetAdmits(z []float64, members []int, moments, coef []float64) bool {
+// the facet through the members (ascending indices), and the sign that
+// P_S takes on the grid points off the facet.
+func facetAdmits(z []float64, members []int, moments, coef []float64) (bool, float64) {
 	// Expand Π (z − z_s) into coefficients coef[0..L].
 	clear(coef)
 	coef[0] = 1
@@ -106,5 +129,5 @@ func facetAdmits(z []float64, members []int, moments, coef []float64) bool {
 	}
 	// A margin of 1e-12 of the terms' size separates the interior from
 	// targets on the boundary up to rounding.
-	return sign*e > 1e-12*size
+	return sign*e > 1e-12*size, sign
 }

@@ -26,6 +26,9 @@ func Product(parts ...*Chain) *Chain {
 	for i := range out.Matched {
 		out.Matched[i] = matchedAt(parts[0], i)
 	}
+	if parts[0].Certificates != nil {
+		out.Certificates = append([]Certificate(nil), parts[0].Certificates...)
+	}
 	for _, b := range parts[1:] {
 		out = kron(out, b)
 	}
@@ -44,6 +47,12 @@ func kron(a, b *Chain) *Chain {
 			copy(c.Grid[s*d:], a.State(i))
 			copy(c.Grid[s*d+a.Dim:], b.State(k))
 			c.Matched[s] = min(matchedAt(a, i), matchedAt(b, k))
+			if a.Certificates != nil || b.Certificates != nil {
+				if c.Certificates == nil {
+					c.Certificates = make([]Certificate, n)
+				}
+				c.Certificates[s] = combineCerts(a.Certificate(i), b.Certificate(k))
+			}
 			row := c.Transition[s*n : (s+1)*n]
 			rb := b.Row(k)
 			for j, p := range a.Row(i) {

@@ -39,54 +39,71 @@ func fallbackLadder(L int) []int {
 // quickIter is the Newton budget before the exact feasibility test runs.
 const quickIter = 12
 
-// maxentRows fills trans (one row of len(nodes) per entry of law.Mean) with
-// maximum-entropy transition rows on the given nodes, matching up to L conditional moments in each state and
-// falling back (see fallbackLadder) where the full set is infeasible. matched receives
-// the number of moments matched per state. The multipliers of each state
-// warm-start the next.
-func maxentRows(nodes, logW []float64, law conditional, L int, trans []float64, matched []int) {
-	n := len(nodes)
+// maxentRows fills trans (one row of len(nodes) per entry of law.Mean)
+// with maximum-entropy transition rows on the given nodes, matching up to
+// L conditional moments in each state and falling back (see
+// fallbackLadder) only where the next level is proven infeasible. matched
+// and certs receive each state's level and certificate. States are solved
+// from the middle outwards so that each warm start comes from a
+// neighbour; on a symmetric problem (scalarMirror) only one half is solved
+// and the other mirrored.
+func maxentRows(nodes, logW []float64, law conditional, L int, trans []float64, matched []int, certs []Certificate) {
+	n, m := len(nodes), len(law.Mean)
 	targets := shockTargets(law.Shock, L)
 	logq := make([]float64, n)
 	dev := make([]float64, n*L)
 	z := make([]float64, n)
-	warm := make([]float64, L)
-	warmL := -1
-	ladder := fallbackLadder(L)
-	var dual Dual
-	for i := range law.Mean {
-		m, s := law.Mean[i], law.SD[i]
+	policy := newExactMatch(L, quickIter)
+	pr := &stateProblem{
+		logq:   logq,
+		ladder: fallbackLadder(L),
+		at: func(l int) ([]float64, int) {
+			fillDeviations(z, targets[:l], dev[:n*l])
+			return dev[:n*l], l
+		},
+		separator: func(l int, _ []float64, _ int) []float64 {
+			y, _ := powerMomentsSeparator(z, targets[:l])
+			return y
+		},
+	}
+	solve := func(i int) {
+		mi, s := law.Mean[i], law.SD[i]
 		for j, x := range nodes {
-			z[j] = (x - m) / s
+			z[j] = (x - mi) / s
 			if law.Shock == nil {
 				logq[j] = logW[j] - 0.5*z[j]*z[j]
 			} else {
 				logq[j] = logW[j] + law.Shock.LogProb(z[j])
 			}
 		}
-		row := trans[i*n : (i+1)*n]
-		got := 0
-		for _, l := range ladder {
-			fillDeviations(z, targets[:l], dev[:n*l])
-			var start []float64
-			if warmL == l {
-				start = warm[:l]
-			}
-			lam, ok := dual.solveOrProve(logq, dev[:n*l], l, start, row, quickIter, func() bool {
-				feasible, decided := powerMomentsFeasible(z, targets[:l])
-				return decided && !feasible
-			})
-			if ok {
-				copy(warm, lam)
-				warmL, got = l, l
-				break
-			}
+		sol := policy.solveState(pr, trans[i*n:(i+1)*n])
+		matched[i], certs[i] = sol.Level, sol.Cert
+	}
+	mirror := scalarMirror(nodes, logW, law)
+	mid := (m - 1) / 2
+	for i := mid; i >= 0; i-- {
+		solve(i)
+		if i == mid {
+			policy.stashWarm()
 		}
-		if got == 0 {
-			priorRow(logq, row)
-			warmL = -1
+	}
+	if mirror {
+		if m%2 == 1 {
+			symmetrizeRow(trans[mid*n : (mid+1)*n])
 		}
-		matched[i] = got
+		for i := m / 2; i < m; i++ {
+			k := m - 1 - i
+			if k == i {
+				continue
+			}
+			mirrorRow(trans[i*n:(i+1)*n], trans[k*n:(k+1)*n])
+			matched[i], certs[i] = matched[k], certs[k]
+		}
+		return
+	}
+	policy.restoreWarm()
+	for i := mid + 1; i < m; i++ {
+		solve(i)
 	}
 }
 

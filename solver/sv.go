@@ -110,6 +110,7 @@ func (p SV) Discretize(level, vol Settings) (*Chain, error) {
 	}
 	levelRows := make([][]float64, nh)
 	levelMatched := make([][]int, nh)
+	levelCerts := make([][]Certificate, nh)
 	for k := 0; k < nh; k++ {
 		law := conditional{Mean: make([]float64, ny), SD: make([]float64, ny)}
 		sd := math.Exp(volChain.Grid[k] / 2)
@@ -119,8 +120,9 @@ func (p SV) Discretize(level, vol Settings) (*Chain, error) {
 		}
 		levelRows[k] = make([]float64, ny*ny)
 		levelMatched[k] = make([]int, ny)
+		levelCerts[k] = make([]Certificate, ny)
 		if level.Method == MaxEnt {
-			maxentRows(nodes, logW, law, L, levelRows[k], levelMatched[k])
+			maxentRows(nodes, logW, law, L, levelRows[k], levelMatched[k], levelCerts[k])
 		} else {
 			tauchenRows(nodes, nodes[1]-nodes[0], law, levelRows[k])
 		}
@@ -133,6 +135,12 @@ func (p SV) Discretize(level, vol Settings) (*Chain, error) {
 			s := i*nh + k
 			c.Grid[2*s], c.Grid[2*s+1] = nodes[i], volChain.Grid[k]
 			c.Matched[s] = min(levelMatched[k][i], volChain.Matched[k])
+			if level.Method == MaxEnt || volChain.Certificates != nil {
+				if c.Certificates == nil {
+					c.Certificates = make([]Certificate, n)
+				}
+				c.Certificates[s] = combineCerts(levelCerts[k][i], volChain.Certificate(k))
+			}
 			row := c.Row(s)
 			py := levelRows[k][i*ny : (i+1)*ny]
 			ph := volChain.Row(k)

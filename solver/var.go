@@ -221,19 +221,28 @@ func (p VAR) Discretize(s Settings) (*Chain, error) {
 
 func (p VAR) maxent(s Settings, L int) *Chain {
 	d := p.Dim()
+	grid, logWeights, law := p.maxentProblem(s)
+	n := len(logWeights)
+	c := &Chain{Dim: d, Grid: grid, Method: MaxEnt, Moments: L,
+		Transition: make([]float64, n*n), Matched: make([]int, n), Certificates: make([]Certificate, n)}
+	maxentVectorRows(grid, logWeights, law, L, c.Transition, c.Matched, c.Certificates)
+	return c
+}
+
+// maxentProblem lays the tensor grid with its log weights and the
+// conditional law of every state.
+func (p VAR) maxentProblem(s Settings) (grid, logWeights []float64, law gaussianVectorLaw) {
+	d := p.Dim()
 	mu, sigma := p.StationaryMean(), p.StationaryCov()
 	nodes, logW := placeGrid(s.Grid, s.States, 0, 1, s.Width, Normal{0, 1})
-	grid, logWeights := tensorGrid(mu, axisFrame(s.Axes, sigma, d), d, nodes, logW)
+	grid, logWeights = tensorGrid(mu, axisFrame(s.Axes, sigma, d), d, nodes, logW)
 	n := len(logWeights)
 	means := make([]float64, n*d)
 	for i := 0; i < n; i++ {
 		p.ConditionalMean(grid[i*d:(i+1)*d], means[i*d:(i+1)*d])
 	}
-	c := &Chain{Dim: d, Grid: grid, Method: MaxEnt, Moments: L,
-		Transition: make([]float64, n*n), Matched: make([]int, n)}
-	law := gaussianVectorLaw{d: d, axisStates: s.States, means: means, chol: choleskyLower(p.Cov, d), sd: diagSqrt(p.Cov, d)}
-	maxentVectorRows(grid, logWeights, law, L, c.Transition, c.Matched)
-	return c
+	law = gaussianVectorLaw{d: d, axisStates: s.States, means: means, chol: choleskyLower(p.Cov, d), sd: diagSqrt(p.Cov, d)}
+	return grid, logWeights, law
 }
 
 // choleskyLower returns the lower Cholesky factor of the SPD matrix a.

@@ -1,5 +1,7 @@
 package solver
 
+import "math"
+
 // gaussianVectorLaw is the conditional law of a Gaussian vector process:
 // in from-state i, x' ~ N(means[i*d:(i+1)*d], Ψ) with Ψ = chol cholᵀ and
 // marginal standard deviations sd. When the from-states form a tensor
@@ -61,92 +63,138 @@ func vectorLadder(L int) []int {
 // identity. matched[i] receives the ladder level reached in state i (0 when
 // even the means are infeasible and the prior row is used). The multipliers
 // of each state warm-start the next.
-func maxentVectorRows(grid, logW []float64, law gaussianVectorLaw, L int, trans []float64, matched []int) {
+func maxentVectorRows(grid, logW []float64, law gaussianVectorLaw, L int, trans []float64, matched []int, certs []Certificate) {
 	d, n := law.d, len(logW)
 	full := vectorMomentCount(L, d)
 	logq := make([]float64, n)
 	allDev := make([]float64, n*full)
 	dev := make([]float64, n*full)
 	e, z := make([]float64, d), make([]float64, d)
-	warm := make([]float64, full)
-	warmL := -1
-	ladder := vectorLadder(L)
-	var dual Dual
-	order := snakeOrder(len(law.means)/d, law.axisStates, d)
-	for _, i := range order {
-		m := law.means[i*d : (i+1)*d]
-		for j := 0; j < n; j++ {
-			x := grid[j*d : (j+1)*d]
-			for k := range e {
-				e[k] = x[k] - m[k]
-			}
-			var q float64
-			for r := 0; r < d; r++ { // forward substitution L z = e
-				s := e[r]
-				for c := 0; c < r; c++ {
-					s -= law.chol[r*d+c] * z[c]
-				}
-				z[r] = s / law.chol[r*d+r]
-				q += z[r] * z[r]
-			}
-			logq[j] = logW[j] - q/2
-			row := allDev[j*full : (j+1)*full]
-			col := copy(row, z[:min(d, full)])
-			if L >= 2 {
-				for k := 0; k < d; k++ {
-					for l := k; l < d; l++ {
-						v := z[k] * z[l]
-						if k == l {
-							v--
-						}
-						row[col] = v
-						col++
-					}
-				}
-			}
-			if L >= 3 {
-				for k := 0; k < d; k++ {
-					u := e[k] / law.sd[k]
-					row[col] = u * u * u
-					col++
-				}
-			}
-			if L >= 4 {
-				for k := 0; k < d; k++ {
-					u := e[k] / law.sd[k]
-					u *= u
-					row[col] = u*u - 3
-					col++
-				}
-			}
-		}
-		row := trans[i*n : (i+1)*n]
-		got := 0
-		for _, l := range ladder {
+	policy := newExactMatch(full, vectorQuickIter)
+	var ws wolfe
+	pr := &stateProblem{
+		logq:   logq,
+		ladder: vectorLadder(L),
+		at: func(l int) ([]float64, int) {
 			cols := vectorMomentCount(l, d)
 			for j := 0; j < n; j++ {
 				copy(dev[j*cols:(j+1)*cols], allDev[j*full:j*full+cols])
 			}
-			var start []float64
-			if warmL == l {
-				start = warm[:cols]
-			}
-			// Wolfe's minimum-norm-point test proves infeasibility.
-			lam, ok := dual.solveOrProve(logq, dev[:n*cols], cols, start, row, vectorQuickIter, func() bool {
-				return separated(dev[:n*cols], n, cols)
-			})
-			if ok {
-				copy(warm, lam)
-				warmL, got = l, l
-				break
-			}
-		}
-		if got == 0 {
-			priorRow(logq, row)
-			warmL = -1
-		}
-		matched[i] = got
+			return dev[:n*cols], cols
+		},
+		// Wolfe's minimum-norm-point test finds a separating direction.
+		separator: func(_ int, dv []float64, cols int) []float64 {
+			return ws.separator(dv, n, cols)
+		},
 	}
+	from := len(law.means) / d
+	mirror := from == n && vectorMirror(grid, logW, law.means, d)
+	solved := make([]bool, from)
+	for _, i := range snakeOrder(from, law.axisStates, d) {
+		k := from - 1 - i
+		if mirror && solved[k] {
+			continue
+		}
+		law.fillState(i, grid, logW, L, logq, allDev, e, z)
+		sol := policy.solveState(pr, trans[i*n:(i+1)*n])
+		matched[i], certs[i] = sol.Level, sol.Cert
+		solved[i] = true
+	}
+	if !mirror {
+		return
+	}
+	for i := 0; i < from; i++ {
+		k := from - 1 - i
+		switch {
+		case k == i:
+			symmetrizeRow(trans[i*n : (i+1)*n])
+		case !solved[i]:
+			mirrorRow(trans[i*n:(i+1)*n], trans[k*n:(k+1)*n])
+			matched[i], certs[i] = matched[k], certs[k]
+		}
+	}
+}
+
+// fillState sets, for from-state i, the log prior weights logq (length n)
+// and the deviations of every moment function of level L (allDev, n×
+// vectorMomentCount(L, d)); e and z are scratch of length d.
+func (law gaussianVectorLaw) fillState(i int, grid, logW []float64, L int, logq, allDev, e, z []float64) {
+	d, n := law.d, len(logW)
+	full := vectorMomentCount(L, d)
+	m := law.means[i*d : (i+1)*d]
+	for j := 0; j < n; j++ {
+		x := grid[j*d : (j+1)*d]
+		for k := range e {
+			e[k] = x[k] - m[k]
+		}
+		var q float64
+		for r := 0; r < d; r++ { // forward substitution L z = e
+			s := e[r]
+			for c := 0; c < r; c++ {
+				s -= law.chol[r*d+c] * z[c]
+			}
+			z[r] = s / law.chol[r*d+r]
+			q += z[r] * z[r]
+		}
+		logq[j] = logW[j] - q/2
+		row := allDev[j*full : (j+1)*full]
+		col := copy(row, z[:min(d, full)])
+		if L >= 2 {
+			for k := 0; k < d; k++ {
+				for l := k; l < d; l++ {
+					v := z[k] * z[l]
+					if k == l {
+						v--
+					}
+					row[col] = v
+					col++
+				}
+			}
+		}
+		if L >= 3 {
+			for k := 0; k < d; k++ {
+				u := e[k] / law.sd[k]
+				row[col] = u * u * u
+				col++
+			}
+		}
+		if L >= 4 {
+			for k := 0; k < d; k++ {
+				u := e[k] / law.sd[k]
+				u *= u
+				row[col] = u*u - 3
+				col++
+			}
+		}
+	}
+}
+
+// vectorMirror reports whether the vector problem is symmetric under
+// reflection through the grid's centre c: grid point j mirrors n−1−j (a
+// tensor grid on symmetric axis nodes), with equal weights and
+// conditional means reflected too (c + B(2c − x) = 2c − (c + Bx) when c
+// is the stationary mean). The Gaussian innovation is symmetric.
+func vectorMirror(grid, logW, means []float64, d int) bool {
+	n := len(logW)
+	var span float64
+	c := make([]float64, d)
+	for k := 0; k < d; k++ {
+		c[k] = (grid[k] + grid[(n-1)*d+k]) / 2
+		span = math.Max(span, math.Abs(grid[k]-grid[(n-1)*d+k])+math.Abs(c[k]))
+	}
+	tol := symTol * span
+	for i := 0; i < n/2+1; i++ {
+		m := n - 1 - i
+		if math.Abs(logW[i]-logW[m]) > symTol*(1+math.Abs(logW[i])) {
+			return false
+		}
+		for k := 0; k < d; k++ {
+			if math.Abs(grid[i*d+k]+grid[m*d+k]-2*c[k]) > tol || math.Abs(means[i*d+k]+means[m*d+k]-2*c[k]) > tol {
+				return false
+			}
+		}
+	}
+	return true
 }
 
 // snakeOrder returns the from-states 0 … n−1 in boustrophedon order over a

@@ -13,10 +13,12 @@ import "math"
 type VectorStateCheck struct {
 	Level   []float64 `json:"level"`
 	Matched int       `json:"matched"`
-	MeanErr []float64 `json:"mean_std_error"`
-	CovErr  []float64 `json:"cov_std_error"`
-	SkewErr []float64 `json:"skewness_error"`
-	KurtErr []float64 `json:"kurtosis_std_error"`
+	// Certificate says why Matched moments were matched.
+	Certificate Certificate `json:"certificate"`
+	MeanErr     []float64   `json:"mean_std_error"`
+	CovErr      []float64   `json:"cov_std_error"`
+	SkewErr     []float64   `json:"skewness_error"`
+	KurtErr     []float64   `json:"kurtosis_std_error"`
 }
 
 // VectorDiagnostics compares a vector chain with the process it
@@ -75,6 +77,7 @@ func DiagnoseVector(c *Chain, truth VectorTruth) VectorDiagnostics {
 		sc := VectorStateCheck{Level: append([]float64(nil), c.State(i)...), SkewErr: make([]float64, d), KurtErr: make([]float64, d)}
 		if c.Matched != nil {
 			sc.Matched = c.Matched[i]
+			sc.Certificate = c.Certificate(i)
 		}
 		for k := 0; k < d; k++ {
 			diff[k] = cm.Mean[k] - tm.Mean[k]
