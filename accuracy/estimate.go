@@ -47,24 +47,25 @@ func (e Estimate) Params() []float64 {
 	return out
 }
 
-// ParamNames names the entries of Params for dimension d: c1 …, B11 …,
-// Psi11 … (1-based; for d = 1: c, rho, sigma2).
+// ParamNames names the entries of Params for dimension d, rows and
+// columns counted from 1 as in the command's help: intercept[1] …,
+// coef[1,1] …, cov[1,1] … (for d = 1: intercept, rho, sigma^2).
 func ParamNames(d int) []string {
 	if d == 1 {
-		return []string{"c", "rho", "sigma2"}
+		return []string{"intercept", "rho", "sigma^2"}
 	}
 	var out []string
 	for k := 1; k <= d; k++ {
-		out = append(out, fmt.Sprintf("c%d", k))
+		out = append(out, fmt.Sprintf("intercept[%d]", k))
 	}
 	for k := 1; k <= d; k++ {
 		for l := 1; l <= d; l++ {
-			out = append(out, fmt.Sprintf("B%d%d", k, l))
+			out = append(out, fmt.Sprintf("coef[%d,%d]", k, l))
 		}
 	}
 	for k := 1; k <= d; k++ {
 		for l := k; l <= d; l++ {
-			out = append(out, fmt.Sprintf("Psi%d%d", k, l))
+			out = append(out, fmt.Sprintf("cov[%d,%d]", k, l))
 		}
 	}
 	return out

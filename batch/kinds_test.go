@@ -34,7 +34,7 @@ processes:
       vary:
         coef[0][0]: [0.85, 0.9]
   - name: price
-    kind: sv
+    kind: ar1-volatility
     rho: 0.9
     mean: 1
     log_variance: {rho: 0.8, sigma: 0.2, mean: -4, states: 3, method: rouwenhorst}

@@ -11,7 +11,7 @@ type Header struct {
 	// Process is the process name; it names the files, so it may hold only
 	// letters, digits, '_', '-' and '.', and may not start with '.'.
 	Process string
-	// Kind is the process kind (ar1, iid, var, sv, lifecycle, product).
+	// Kind is the process kind (ar1, ar1-volatility, iid, var, lifecycle, product).
 	Kind string
 	// Method is the discretization method of the primary chains.
 	Method string

@@ -8,7 +8,7 @@ import (
 )
 
 // VectorDiag is what a set keeps of the diagnostics of a chain whose state
-// is a vector (solver.VectorDiagnostics; kinds var, sv and product): in
+// is a vector (solver.VectorDiagnostics; kinds var, ar1-volatility and product): in
 // every state the largest standardized errors of the conditional mean
 // vector and covariance matrix, and for the chain its stationary mean and
 // covariance beside the true ones (docs/FORMATS.md, vector columns).

@@ -27,7 +27,7 @@ var badManifests = []struct {
 	{"rho-quoted.yaml", ErrType},
 	{"moments-too-many.yaml", ErrRange},
 	{"moments-with-tauchen.yaml", ErrRule},
-	{"grid-with-rouwenhorst.yaml", ErrRule},
+	{"nodes-with-rouwenhorst.yaml", ErrRule},
 	{"floden-with-maxent.yaml", ErrRule},
 	{"width-with-hermite.yaml", ErrRule},
 	{"t-nu-too-small.yaml", ErrRange},
@@ -67,11 +67,12 @@ var badManifests = []struct {
 	{"var-ragged-matrix.yaml", ErrType},
 	{"var-mismatched-sizes.yaml", ErrRule},
 	{"var-settings.yaml", ErrRange},
-	{"sv-log-variance.yaml", ErrMissing},
+	{"ar1-volatility-log-variance.yaml", ErrMissing},
 	{"lifecycle-lengths.yaml", ErrRule},
 	{"lifecycle-innovations.yaml", ErrRule},
 	{"product-components.yaml", ErrRule},
 	{"product-too-many-states.yaml", ErrRange},
+	{"former-names.yaml", ErrUnknown},
 }
 
 // toRoot runs the test from the repository root, so that file names in

@@ -34,14 +34,14 @@ func (s *iidSpec) momentLimit() (int, string) {
 // rules: Gauss-Hermite nodes cover the whole real line, so they do not suit
 // a law on a bounded or half-bounded support (the solver refuses them too).
 func (s *iidSpec) rules(r *reporter, p *processSpec) bool {
-	if p.grid.v != solver.GridGaussHermite.String() || !p.grid.set {
+	if p.nodes.v != solver.NodesGaussHermite.String() || !p.nodes.set {
 		return true
 	}
 	lo, hi := s.dist.dist().Support()
 	if math.IsInf(lo, -1) && math.IsInf(hi, 1) {
 		return true
 	}
-	r.add(p.grid.at, ErrRule, "gauss-hermite does not suit the %s law, whose support is bounded: want even, gauss-legendre or quantile", s.dist.fam.name)
+	r.add(p.nodes.at, ErrRule, "gauss-hermite does not suit the %s law, whose support is bounded: want lattice, gauss-legendre or equal-mass", s.dist.fam.name)
 	return false
 }
 

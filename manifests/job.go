@@ -149,7 +149,7 @@ type Solution struct {
 	BaselineDiagnostics *solver.Diagnostics
 
 	// Vector and BaselineVector compare the chains with a vector process
-	// (kinds var, sv, product) as a whole: conditional mean vectors and
+	// (kinds var, ar1-volatility, product) as a whole: conditional mean vectors and
 	// covariance matrices, stationary covariances. Diagnostics still
 	// compares the first component. Nil for univariate kinds.
 	Vector, BaselineVector *solver.VectorDiagnostics

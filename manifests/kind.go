@@ -124,4 +124,4 @@ type stateCounter interface {
 }
 
 // componentKinds are the kinds a product may combine.
-var componentKinds = []string{"ar1", "iid", "sv", "var"}
+var componentKinds = []string{"ar1", "ar1-volatility", "iid", "var"}

@@ -29,15 +29,15 @@ func parseOne(t *testing.T, processes string) *Manifest {
 func TestCanonicalNewKinds(t *testing.T) {
 	cases := []struct{ process, want string }{
 		{"  - {name: a, kind: var, coef: [[0.9, 0.1], [0, 0.8]], cov: [[0.01, 0], [0, 0.02]], states: 5}\n",
-			`{"coef":[[0.9,0.1],[0,0.8]],"compare":"tauchen","cov":[[0.01,0],[0,0.02]],"grid":"even","grid_axes":"principal","intercept":[0,0],"kind":"var","method":"maxent","moments":2,"states":5,"width":2}`},
+			`{"axes":"principal","coef":[[0.9,0.1],[0,0.8]],"compare":"tauchen","cov":[[0.01,0],[0,0.02]],"intercept":[0,0],"kind":"var","method":"maxent","moments":2,"nodes":"lattice","states":5,"width":2}`},
 		{"  - {name: a, kind: var, method: tauchen, coef: [[0.9]], cov: [[0.01]], intercept: [1]}\n",
 			`{"coef":[[0.9]],"compare":"maxent","cov":[[0.01]],"intercept":[1],"kind":"var","method":"tauchen","states":9,"width":3}`},
-		{"  - {name: a, kind: sv, rho: 0.9, log_variance: {rho: 0.8, sigma: 0.2, mean: -4}, states: 7, compare: none}\n",
-			`{"compare":"none","grid":"even","kind":"sv","log_variance":{"mean":-4,"method":"maxent","rho":0.8,"sigma":0.2,"states":5},"mean":0,"method":"maxent","moments":4,"rho":0.9,"states":7,"width":2.449489742783178}`},
+		{"  - {name: a, kind: ar1-volatility, rho: 0.9, log_variance: {rho: 0.8, sigma: 0.2, mean: -4}, states: 7, compare: none}\n",
+			`{"compare":"none","kind":"ar1-volatility","log_variance":{"mean":-4,"method":"maxent","rho":0.8,"sigma":0.2,"states":5},"mean":0,"method":"maxent","moments":4,"nodes":"lattice","rho":0.9,"states":7,"width":2.449489742783178}`},
 		{"  - {name: a, kind: lifecycle, method: rouwenhorst, rho: [0.9, 1], sigma: [0.1, 0.2], initial_sd: 0.3}\n",
 			`{"compare":"maxent","initial":{"law":"normal"},"initial_sd":0.3,"innovation":[{"law":"normal"},{"law":"normal"}],"kind":"lifecycle","method":"rouwenhorst","rho":[0.9,1],"sigma":[0.1,0.2],"states":9}`},
 		{"  - {name: a, kind: product, components: [{kind: ar1, rho: 0.5, sigma: 0.1, method: rouwenhorst, states: 3}, {kind: iid, distribution: {law: laplace}, states: 2, moments: 2}]}\n",
-			`{"compare":"none","components":[{"compare":"none","innovation":{"law":"normal"},"kind":"ar1","mean":0,"method":"rouwenhorst","rho":0.5,"sigma":0.1,"states":3},{"compare":"none","distribution":{"law":"laplace","location":0,"scale":1},"grid":"even","kind":"iid","method":"maxent","moments":2,"states":2,"width":1}],"kind":"product"}`},
+			`{"compare":"none","components":[{"compare":"none","innovation":{"law":"normal"},"kind":"ar1","mean":0,"method":"rouwenhorst","rho":0.5,"sigma":0.1,"states":3},{"compare":"none","distribution":{"law":"laplace","location":0,"scale":1},"kind":"iid","method":"maxent","moments":2,"nodes":"lattice","states":2,"width":1}],"kind":"product"}`},
 	}
 	for _, tc := range cases {
 		m := parseOne(t, tc.process)
@@ -53,15 +53,15 @@ func TestCanonicalFormsNewKinds(t *testing.T) {
 	groups := [][]string{
 		{ // intercept left out or written as zeros; default axes named
 			"{name: a, kind: var, coef: [[0.9, 0.1], [0, 0.8]], cov: [[0.01, 0], [0, 0.02]]}",
-			"{name: b, kind: var, coef: [[0.90, 1e-1], [0, 0.8]], cov: [[0.01, 0], [0, 0.02]], intercept: [0, -0], grid_axes: principal, moments: 2}",
+			"{name: b, kind: var, coef: [[0.90, 1e-1], [0, 0.8]], cov: [[0.01, 0], [0, 0.02]], intercept: [0, -0], axes: principal, moments: 2}",
 		},
 		{ // one law for every age or the same law per age
 			"{name: a, kind: lifecycle, rho: [0.9, 0.95], sigma: [0.1, 0.1], initial_sd: 0.2, innovation: {law: t, nu: 6}}",
 			"{name: b, kind: lifecycle, rho: [0.9, 0.95], sigma: [0.1, 0.1], initial_sd: 0.2, innovation: [{law: t, nu: 6}, {law: t, nu: 6.0}]}",
 		},
 		{ // the log-variance's defaults written out
-			"{name: a, kind: sv, rho: 0.9, log_variance: {rho: 0.8, sigma: 0.2, mean: -4}}",
-			"{name: b, kind: sv, rho: 0.9, mean: 0, log_variance: {rho: 0.8, sigma: 0.2, mean: -4, states: 5, method: maxent}}",
+			"{name: a, kind: ar1-volatility, rho: 0.9, log_variance: {rho: 0.8, sigma: 0.2, mean: -4}}",
+			"{name: b, kind: ar1-volatility, rho: 0.9, mean: 0, log_variance: {rho: 0.8, sigma: 0.2, mean: -4, states: 5, method: maxent}}",
 		},
 	}
 	for _, forms := range groups {
@@ -100,10 +100,10 @@ func mustBuild(t *testing.T, j Job) Problem {
 
 // TestBuildNewKinds checks what Build hands the solver for each kind.
 func TestBuildNewKinds(t *testing.T) {
-	m := parseOne(t, `  - {name: v, kind: var, coef: [[0.9, 0.1], [0, 0.8]], cov: [[0.01, 0.002], [0.002, 0.02]], intercept: [0.1, 0], grid_axes: coordinate, states: 4}
-  - {name: s, kind: sv, rho: 0.9, mean: 1, log_variance: {rho: 0.8, sigma: 0.2, mean: -4, states: 3, method: tauchen}, method: tauchen, states: 6}
+	m := parseOne(t, `  - {name: v, kind: var, coef: [[0.9, 0.1], [0, 0.8]], cov: [[0.01, 0.002], [0.002, 0.02]], intercept: [0.1, 0], axes: coordinate, states: 4}
+  - {name: s, kind: ar1-volatility, rho: 0.9, mean: 1, log_variance: {rho: 0.8, sigma: 0.2, mean: -4, states: 3, method: tauchen}, method: tauchen, states: 6}
   - {name: l, kind: lifecycle, rho: [0.9, 1], sigma: [0.1, 0.2], initial_sd: 0.3, innovation: [{law: normal}, {law: laplace}], states: 5}
-  - {name: p, kind: product, components: [{kind: sv, rho: 0.5, log_variance: {rho: 0.5, sigma: 0.1, mean: -3}, states: 3}, {kind: ar1, rho: 0.5, sigma: 0.1, states: 4}]}
+  - {name: p, kind: product, components: [{kind: ar1-volatility, rho: 0.5, log_variance: {rho: 0.5, sigma: 0.1, mean: -3}, states: 3}, {kind: ar1, rho: 0.5, sigma: 0.1, states: 4}]}
 `)
 	v := mustBuild(t, m.Jobs[0])
 	wantVAR := solver.VAR{Intercept: []float64{0.1, 0}, Coef: []float64{0.9, 0.1, 0, 0.8}, Cov: []float64{0.01, 0.002, 0.002, 0.02}}
@@ -118,7 +118,7 @@ func TestBuildNewKinds(t *testing.T) {
 	}
 
 	s := mustBuild(t, m.Jobs[1])
-	sv, ok := s.Model.(svModel)
+	sv, ok := s.Model.(volatilityModel)
 	if !ok || sv.Vol != (solver.Settings{States: 3, Method: solver.Tauchen}) || sv.LogVar != (solver.AR1{Mean: -4, Rho: 0.8, Sigma: 0.2}) || sv.Mean != 1 {
 		t.Errorf("sv model %+v", s.Model)
 	}
@@ -175,7 +175,7 @@ func TestSweepNestedParameters(t *testing.T) {
     kind: product
     components:
       - {kind: ar1, rho: 0.5, sigma: 0.1}
-      - {kind: sv, rho: 0.5, log_variance: {rho: 0.5, sigma: 0.1, mean: -3}}
+      - {kind: ar1-volatility, rho: 0.5, log_variance: {rho: 0.5, sigma: 0.1, mean: -3}}
     sweep: {vary: {"components[1].log_variance.mean": [-3, -2]}}
 `)
 	if len(m.Jobs) != 6 {
@@ -187,7 +187,7 @@ func TestSweepNestedParameters(t *testing.T) {
 	if got := mustBuild(t, m.Jobs[3]).AgeModel.(lifecycleModel); got.Sigma[1] != 0.4 {
 		t.Errorf("point 1 of l: %+v", got)
 	}
-	if got := mustBuild(t, m.Jobs[5]).Model.(productModel).Parts[1].(svModel); got.LogVar.Mean != -2 {
+	if got := mustBuild(t, m.Jobs[5]).Model.(productModel).Parts[1].(volatilityModel); got.LogVar.Mean != -2 {
 		t.Errorf("point 1 of p: %+v", got)
 	}
 	// Sweeping one entry of cov breaks its symmetry: the error names the

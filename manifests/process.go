@@ -38,7 +38,7 @@ type processSpec struct {
 	at                     loc // the process mapping
 	role                   processRole
 	name, kind             str
-	method, grid, compare  str
+	method, nodes, compare str
 	states, moments, width num
 	floden                 toggle
 	spec                   kindSpec // nil when the kind is unknown
@@ -74,7 +74,7 @@ func (d *decoder) decodeProcess(n *yaml.Node, path string, role processRole) *pr
 	p.method = m.choice("method", solver.MethodNames())
 	p.states = m.number("states")
 	p.moments = m.number("moments")
-	p.grid = m.choice("grid", solver.GridRuleNames())
+	p.nodes = m.choice("nodes", solver.NodeRuleNames())
 	p.width = m.number("width")
 	p.floden = m.boolean("floden")
 	p.compare = m.choice("compare", append(solver.MethodNames(), "none"))
@@ -156,7 +156,7 @@ func (p *processSpec) check(r *reporter) bool {
 		return false
 	}
 	ok := p.spec.check(r, p.at)
-	if p.method.bad || p.grid.bad || p.compare.bad {
+	if p.method.bad || p.nodes.bad || p.compare.bad {
 		// Already reported; rules that depend on them would only add noise.
 		return false
 	}
@@ -204,16 +204,16 @@ func (p *processSpec) check(r *reporter) bool {
 		p.moments.v = float64(min(def, limit))
 	}
 
-	grid := solver.GridEven
-	if p.grid.set {
+	nodes := solver.NodesLattice
+	if p.nodes.set {
 		if !maxent {
-			r.add(p.grid.at, ErrRule, "applies to method maxent only: %s places its own grid", method)
+			r.add(p.nodes.at, ErrRule, "applies to method maxent only: %s places its own grid", method)
 			ok = false
 		}
-		grid, _ = solver.ParseGridRule(p.grid.v)
+		nodes, _ = solver.ParseNodeRule(p.nodes.v)
 	}
 
-	widthApplies := method == solver.Tauchen || (maxent && (grid == solver.GridEven || grid == solver.GridGaussLegendre))
+	widthApplies := method == solver.Tauchen || (maxent && (nodes == solver.NodesLattice || nodes == solver.NodesGaussLegendre))
 	if p.width.set {
 		switch {
 		case !checkPositive(r, p.width):
@@ -222,7 +222,7 @@ func (p *processSpec) check(r *reporter) bool {
 			r.add(p.width.at, ErrRule, "does not apply to method %s: it sets its own grid", method)
 			ok = false
 		case !widthApplies:
-			r.add(p.width.at, ErrRule, "applies to even and gauss-legendre grids only: the %s grid has no width", grid)
+			r.add(p.width.at, ErrRule, "applies to lattice and gauss-legendre nodes only: %s nodes have no width", nodes)
 			ok = false
 		}
 	} else if ok {
@@ -268,7 +268,7 @@ func (p *processSpec) check(r *reporter) bool {
 		return false
 	}
 	p.settings = solver.Settings{
-		States: int(p.states.v), Method: method, Grid: grid,
+		States: int(p.states.v), Method: method, Nodes: nodes,
 		Width: p.width.v, Floden: p.floden.v && method == solver.TauchenHussey,
 	}
 	if maxent {
@@ -293,7 +293,7 @@ func (p *processSpec) checkComposite(r *reporter, kindOK bool) bool {
 		set bool
 		at  loc
 	}{{p.method.set, p.method.at}, {p.states.set || p.states.bad, p.states.at}, {p.moments.set || p.moments.bad, p.moments.at},
-		{p.grid.set, p.grid.at}, {p.width.set || p.width.bad, p.width.at}, {p.floden.set, p.floden.at}} {
+		{p.nodes.set, p.nodes.at}, {p.width.set || p.width.bad, p.width.at}, {p.floden.set, p.floden.at}} {
 		if at.set {
 			r.add(at.at, ErrRule, "%s", why)
 			ok = false
@@ -360,8 +360,8 @@ func (p *processSpec) canonicalSpec() object {
 	switch s.Method {
 	case solver.MaxEnt:
 		o["moments"] = s.Moments
-		o["grid"] = s.Grid.String()
-		if s.Grid == solver.GridEven || s.Grid == solver.GridGaussLegendre {
+		o["nodes"] = s.Nodes.String()
+		if s.Nodes == solver.NodesLattice || s.Nodes == solver.NodesGaussLegendre {
 			o["width"] = s.Width
 		}
 	case solver.Tauchen:

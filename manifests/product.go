@@ -13,7 +13,7 @@ func init() {
 
 // productSpec combines independent processes into one chain (solver.Product):
 // components lists them, each a process entry without name, sweep or
-// baseline, of kind ar1, iid, sv or var, with its own settings. The state
+// baseline, of kind ar1, ar1-volatility, iid or var, with its own settings. The state
 // vector concatenates the components' vectors, the first component's
 // first, and states are numbered with the last component varying fastest.
 type productSpec struct {
@@ -22,7 +22,7 @@ type productSpec struct {
 	bad   bool
 }
 
-const componentsWant = "a list of at least two processes (each with kind ar1, iid, sv or var and its own settings)"
+const componentsWant = "a list of at least two processes (each with kind ar1, ar1-volatility, iid or var and its own settings)"
 
 func (s *productSpec) decode(m *mapping) {
 	list, ok := m.list("components", componentsWant)

@@ -72,15 +72,16 @@ func TestSchemaAcceptsGoodManifests(t *testing.T) {
 var schemaCatches = []string{
 	"rho-out-of-range.yaml", "unknown-key-typo.yaml", "sigma-not-positive.yaml",
 	"states-too-few.yaml", "states-fraction.yaml", "states-text.yaml", "rho-quoted.yaml",
-	"moments-too-many.yaml", "moments-with-tauchen.yaml", "grid-with-rouwenhorst.yaml",
+	"moments-too-many.yaml", "moments-with-tauchen.yaml", "nodes-with-rouwenhorst.yaml",
 	"floden-with-maxent.yaml", "t-nu-too-small.yaml", "mixture-bad-component.yaml",
 	"unknown-kind.yaml", "unknown-method.yaml", "key-of-other-kind.yaml",
 	"missing-top-level.yaml", "bad-format.yaml", "bad-names.yaml",
 	"iid-with-tauchen.yaml", "iid-compare.yaml", "iid-missing-distribution.yaml",
 	"iid-law-parameter.yaml", "sweep-unknown-parameter.yaml",
 	"sweep-range-step-and-count.yaml", "sweep-empty.yaml", "manifest-errors.json",
-	"wrong-shapes.yaml", "var-ragged-matrix.yaml", "var-settings.yaml", "sv-log-variance.yaml",
+	"wrong-shapes.yaml", "var-ragged-matrix.yaml", "var-settings.yaml", "ar1-volatility-log-variance.yaml",
 	"lifecycle-lengths.yaml", "lifecycle-innovations.yaml", "product-components.yaml",
+	"former-names.yaml",
 }
 
 func TestSchemaRejectsBadManifests(t *testing.T) {

@@ -51,9 +51,23 @@ func editDistance(a, b string) int {
 	return prev[len(t)]
 }
 
+// renamed maps keys and values that earlier versions of the manifest
+// format accepted to their current spelling, so that an error about an old
+// name gives the new one.
+var renamed = map[string]string{
+	"grid":      "nodes",          // the key that chooses the node rule
+	"grid_axes": "axes",           // a VAR's grid orientation
+	"even":      "lattice",        // node rule
+	"quantile":  "equal-mass",     // node rule
+	"sv":        "ar1-volatility", // process kind
+}
+
 // hint phrases the "did you mean" or "want one of" tail of an error about an
 // unknown word.
 func hint(word string, candidates []string) string {
+	if s, ok := renamed[word]; ok && contains(candidates, s) {
+		return "did you mean " + strconv.Quote(s) + "? (" + strconv.Quote(word) + " is the former name)"
+	}
 	if s := suggest(word, candidates); s != "" {
 		return "did you mean " + strconv.Quote(s) + "?"
 	}

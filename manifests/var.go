@@ -9,7 +9,7 @@ import (
 )
 
 func init() {
-	registerKind(kindInfo{name: "var", keys: []string{"coef", "cov", "intercept", "grid_axes"}, new: func() kindSpec { return &varSpec{} }})
+	registerKind(kindInfo{name: "var", keys: []string{"coef", "cov", "intercept", "axes"}, new: func() kindSpec { return &varSpec{} }})
 }
 
 // varSpec is a first-order vector autoregression x' = c + B x + ε,
@@ -33,7 +33,7 @@ func (v *varSpec) decode(m *mapping) {
 	v.cov, v.covBad = m.matrix("cov")
 	v.intercept, v.interceptBad = m.numberList("intercept", interceptWant)
 	v.interceptGiven = m.has("intercept")
-	v.axes = m.choice("grid_axes", solver.GridAxesNames())
+	v.axes = m.choice("axes", solver.GridAxesNames())
 	if !v.interceptGiven && v.coef != nil {
 		// Zeros, so that intercept[k] can be swept without writing them.
 		at := m.d.at(m.node, m.field("intercept"))
@@ -223,7 +223,7 @@ func (v *varSpec) canonical(o object) {
 		if v.axes.set {
 			axes = v.axes.v
 		}
-		o["grid_axes"] = axes
+		o["axes"] = axes
 	}
 }
 

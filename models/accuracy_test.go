@@ -41,14 +41,14 @@ var burnsideCases = []burnsideCase{
 		best:   "maxent (Gauss-Hermite prior)",
 		bestWhy: "With ρ near zero the conditional law is nearly the same in every state, " +
 			"and Gauss-Hermite nodes integrate the smooth e^{θx} almost exactly: Tauchen-Hussey reaches rounding level at N = 9. " +
-			"Maximum entropy on a Gauss-Hermite prior keeps that and matches four moments on top; on the default even grid it is bounded by " +
+			"Maximum entropy on a Gauss-Hermite prior keeps that and matches four moments on top; on the default lattice it is bounded by " +
 			"the trapezoid rule's accuracy instead (Tanaka and Toda 2015). Farmer and Toda (2017) recommend Gauss-Hermite priors for weakly persistent processes [memory].",
 	},
 	{
 		title: "Calibration B (β = 0.95, θ = −1.5, μ = 0.0179, ρ = 0.9, σ = 0.01)",
 		beta:  0.95, theta: -1.5, mu: 0.0179, rho: 0.9, sigma: 0.01,
 		source: "a persistent variant of A invented for this table (σ lowered so that the closed form stays finite)",
-		best:   "maxent (even grid)",
+		best:   "maxent (lattice)",
 		bestWhy: "With persistent growth Tauchen and Tauchen-Hussey lose accuracy (Flodén 2008; Kopecky and Suen 2010); " +
 			"the default maximum-entropy chain is the most accurate at every N.",
 	},
@@ -58,8 +58,8 @@ var burnsideColumns = []struct {
 	name string
 	s    solver.Settings
 }{
-	{"maxent (even grid)", solver.Settings{Method: solver.MaxEnt, Grid: solver.GridEven}},
-	{"maxent (Gauss-Hermite prior)", solver.Settings{Method: solver.MaxEnt, Grid: solver.GridGaussHermite}},
+	{"maxent (lattice)", solver.Settings{Method: solver.MaxEnt, Nodes: solver.NodesLattice}},
+	{"maxent (Gauss-Hermite prior)", solver.Settings{Method: solver.MaxEnt, Nodes: solver.NodesGaussHermite}},
 	{"Tauchen", solver.Settings{Method: solver.Tauchen}},
 	{"Tauchen-Hussey", solver.Settings{Method: solver.TauchenHussey}},
 	{"Rouwenhorst", solver.Settings{Method: solver.Rouwenhorst}},

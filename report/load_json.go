@@ -70,7 +70,7 @@ func loadJSON(path string) (Run, error) {
 		}
 		cs.Diag = &diag
 		cs.Law = figures.Law{Mean: diag.True.Mean, SD: diag.True.SD,
-			Gaussian: d.Kind == "ar1" && d.Process["innovation"] == "normal"}
+			Gaussian: d.Kind == "ar1" && normalInnovation(d.Process)}
 		if d.Baseline != nil && len(d.Baseline.Diagnostics) > 0 {
 			var bd solver.Diagnostics
 			if err := json.Unmarshal(d.Baseline.Diagnostics, &bd); err != nil {
@@ -173,4 +173,11 @@ func varCase(cs *figures.Case, d discretizeJSON) error {
 		cs.BaselineDiag = &bd
 	}
 	return nil
+}
+
+// normalInnovation reports whether a discretize ar1 process object has a
+// normal innovation ({"innovation": {"law": "normal"}}, as in a manifest).
+func normalInnovation(process map[string]any) bool {
+	law, _ := process["innovation"].(map[string]any)
+	return law["law"] == "normal"
 }

@@ -38,7 +38,7 @@ func TestLoadRejectsWhatIsNotGridstageOutput(t *testing.T) {
 
 func TestLoadDiscretizeJSON(t *testing.T) {
 	p := filepath.Join(t.TempDir(), "c.json")
-	os.WriteFile(p, []byte(`{"kind": "ar1", "process": {"innovation": "normal"}, "method": "rouwenhorst", "moments": 2,
+	os.WriteFile(p, []byte(`{"kind": "ar1", "process": {"innovation": {"law": "normal"}}, "method": "rouwenhorst", "moments": 2,
 		"grid": [[-1],[1]], "transition": [[0.9,0.1],[0.1,0.9]], "matched": [2,2]}`), 0o644)
 	r, err := Load(p)
 	if err != nil {

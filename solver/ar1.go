@@ -28,9 +28,10 @@ type Settings struct {
 	// Moments is the number of conditional moments MaxEnt matches; 0 means
 	// 4, or fewer when the innovation lacks finite moments of that order.
 	Moments int
-	// Grid is the quadrature rule MaxEnt uses; the zero value is GridEven.
-	Grid GridRule
-	// Width is the half-width of even, Gauss-Legendre and Tauchen grids in
+	// Nodes is the quadrature rule that places MaxEnt's grid points; the
+	// zero value is NodesLattice.
+	Nodes NodeRule
+	// Width is the half-width of lattice, Gauss-Legendre and Tauchen grids in
 	// unconditional standard deviations; 0 means √(N−1) for MaxEnt and 3 for
 	// Tauchen.
 	Width float64
@@ -102,7 +103,7 @@ func checkStates(n int) error {
 }
 
 // Discretize builds a Markov chain for the process with the chosen method.
-// Baselines ignore Grid and use their own grids; MaxEnt uses Grid and Width.
+// Baselines ignore Nodes and use their own grids; MaxEnt uses Nodes and Width.
 func (p AR1) Discretize(s Settings) (*Chain, error) {
 	if err := p.Validate(); err != nil {
 		return nil, err
@@ -129,7 +130,7 @@ func (p AR1) Discretize(s Settings) (*Chain, error) {
 	}
 	switch s.Method {
 	case MaxEnt:
-		nodes, logW := placeGrid(s.Grid, n, p.Mean, sdY, s.Width, Normal{p.Mean, sdY})
+		nodes, logW := placeGrid(s.Nodes, n, p.Mean, sdY, s.Width, Normal{p.Mean, sdY})
 		setLaw(nodes)
 		c.Certificates = make([]Certificate, n)
 		maxentRows(nodes, logW, law, L, c.Transition, c.Matched, c.Certificates)

@@ -30,7 +30,7 @@ func FuzzAR1(f *testing.F) {
 		case 3:
 			p.Shock = Standardized{Base: Laplace{Scale: 1}}
 		}
-		s := Settings{States: n, Moments: moments, Method: Method(method % 4), Grid: GridRule(grid % 4)}
+		s := Settings{States: n, Moments: moments, Method: Method(method % 4), Nodes: NodeRule(grid % 4)}
 		if s.Method != MaxEnt {
 			s.Moments = 0
 		}

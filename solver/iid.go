@@ -1,6 +1,9 @@
 package solver
 
-import "math"
+import (
+	"fmt"
+	"math"
+)
 
 // IID is a static distribution to be replaced by a discrete one: the draws
 // are independent over time, so a single probability vector suffices.
@@ -17,9 +20,9 @@ type Discrete struct {
 
 // Discretize returns a discrete distribution with s.States points whose
 // first s.Moments standardized moments equal those of the distribution
-// (falling back to fewer when infeasible). Only MaxEnt applies. Even and
+// (falling back to fewer when infeasible). Only MaxEnt applies. Lattice and
 // Gauss-Legendre grids span Width standard deviations about the mean,
-// clipped to the support; on a bounded support the even grid uses cell
+// clipped to the support; on a bounded support the lattice uses cell
 // midpoints so no point sits where the density may vanish or blow up.
 func (p IID) Discretize(s Settings) (*Discrete, error) {
 	if err := checkStates(s.States); err != nil {
@@ -45,23 +48,23 @@ func (p IID) Discretize(s Settings) (*Discrete, error) {
 	a, b := math.Max(lo, mean-width*sd), math.Min(hi, mean+width*sd)
 	var nodes, logW []float64
 	switch {
-	case s.Grid == GridGaussHermite && (!math.IsInf(lo, -1) || !math.IsInf(hi, 1)):
-		return nil, badParam("grid", float64(s.Grid), "a rule other than gauss-hermite for a distribution on a bounded or half-bounded support")
-	case s.Grid == GridEven && (a > mean-width*sd || b < mean+width*sd):
+	case s.Nodes == NodesGaussHermite && (!math.IsInf(lo, -1) || !math.IsInf(hi, 1)):
+		return nil, fmt.Errorf("solver: %s nodes do not suit a distribution on a bounded or half-bounded support: want lattice, gauss-legendre or equal-mass", s.Nodes)
+	case s.Nodes == NodesLattice && (a > mean-width*sd || b < mean+width*sd):
 		h := (b - a) / float64(n)
 		nodes, logW = make([]float64, n), make([]float64, n)
 		for j := range nodes {
 			nodes[j] = a + h*(float64(j)+0.5)
 			logW[j] = math.Log(h)
 		}
-	case s.Grid == GridGaussLegendre:
+	case s.Nodes == NodesGaussLegendre:
 		r := GaussLegendre(n, a, b)
 		nodes, logW = r.Nodes, make([]float64, n)
 		for j, w := range r.Weights {
 			logW[j] = math.Log(w)
 		}
 	default:
-		nodes, logW = placeGrid(s.Grid, n, mean, sd, width, p.Dist)
+		nodes, logW = placeGrid(s.Nodes, n, mean, sd, width, p.Dist)
 	}
 	shock := Standardized{p.Dist}
 	law := conditional{Mean: []float64{mean}, SD: []float64{sd}, Shock: shock}

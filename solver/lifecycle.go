@@ -155,7 +155,7 @@ func (a *AgeChain) Marginals() [][]float64 {
 //     p_t = q_t = (1 + ρ_t √V_t/√V_{t+1})/2, and Initial the
 //     Binomial(N−1, ½) weights. Conditional means and variances are exact at
 //     every age, and so are the marginal variances V_t.
-//   - MaxEnt: the grid rule s.Grid (even by default, which with the default
+//   - MaxEnt: the node rule s.Nodes (lattice by default, which with the default
 //     width is the age-varying Rouwenhorst grid), and in every state the
 //     transition row matches the first s.Moments conditional moments of
 //     ρ_t z + σ_t ε (default 4, fewer when the shock lacks them), with the
@@ -180,7 +180,7 @@ func (p LifeCycle) Discretize(s Settings) (*AgeChain, error) {
 		sd := math.Sqrt(vars[t])
 		switch s.Method {
 		case MaxEnt:
-			grids[t], logWs[t] = placeGrid(s.Grid, n, 0, sd, s.Width, Normal{0, sd})
+			grids[t], logWs[t] = placeGrid(s.Nodes, n, 0, sd, s.Width, Normal{0, sd})
 		case Rouwenhorst:
 			psi := RouwenhorstWidth(n) * sd
 			grids[t] = Trapezoid(n, -psi, psi).Nodes

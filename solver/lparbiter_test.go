@@ -136,10 +136,10 @@ func TestFallbacksAgainstLP(t *testing.T) {
 	for _, rho := range []float64{0.9, 0.95, 0.99, 0.995, 0.999} {
 		for _, n := range []int{5, 9, 15, 21, 41} {
 			for _, L := range []int{1, 2, 4} {
-				for g := GridEven; g <= GridQuantile; g++ {
+				for g := NodesLattice; g <= NodesEqualMass; g++ {
 					for _, sh := range lpShocks {
 						p := AR1{Mean: 0.3, Rho: rho, Sigma: 0.1, Shock: sh.shock}
-						c, err := p.Discretize(Settings{States: n, Moments: L, Grid: g})
+						c, err := p.Discretize(Settings{States: n, Moments: L, Nodes: g})
 						if err != nil {
 							t.Fatal(err)
 						}
@@ -169,8 +169,8 @@ func TestFallbacksAgainstLP(t *testing.T) {
 		for _, n := range v.ns {
 			for _, L := range []int{1, 2, 4} {
 				for _, axes := range []GridAxes{AxesPrincipal, AxesCoordinate} {
-					for _, g := range []GridRule{GridEven, GridGaussHermite} {
-						s := Settings{States: n, Moments: L, Axes: axes, Grid: g}
+					for _, g := range []NodeRule{NodesLattice, NodesGaussHermite} {
+						s := Settings{States: n, Moments: L, Axes: axes, Nodes: g}
 						c, err := v.p.Discretize(s)
 						if err != nil {
 							t.Fatal(err)

@@ -27,9 +27,9 @@ func TestMaxEntMatchesConditionalMoments(t *testing.T) {
 		// coarse for the fourth moment (E z⁴ ≥ h² E z² > 3); width 3 is not.
 		{"gaussian rho=0.99 even", AR1{Rho: 0.99, Sigma: 0.1}, Settings{States: 51, Moments: 4, Width: 3}, false},
 		{"gaussian rho=0.99 two moments", AR1{Rho: 0.99, Sigma: 0.1}, Settings{States: 51, Moments: 2}, true},
-		{"gaussian rho=-0.6 legendre", AR1{Rho: -0.6, Sigma: 0.3}, Settings{States: 15, Moments: 4, Grid: GridGaussLegendre}, false},
-		{"gaussian rho=0.8 hermite", AR1{Rho: 0.8, Sigma: 1}, Settings{States: 15, Moments: 2, Grid: GridGaussHermite}, false},
-		{"gaussian rho=0.7 quantile", AR1{Rho: 0.7, Sigma: 1}, Settings{States: 31, Moments: 2, Grid: GridQuantile}, false},
+		{"gaussian rho=-0.6 legendre", AR1{Rho: -0.6, Sigma: 0.3}, Settings{States: 15, Moments: 4, Nodes: NodesGaussLegendre}, false},
+		{"gaussian rho=0.8 hermite", AR1{Rho: 0.8, Sigma: 1}, Settings{States: 15, Moments: 2, Nodes: NodesGaussHermite}, false},
+		{"gaussian rho=0.7 quantile", AR1{Rho: 0.7, Sigma: 1}, Settings{States: 31, Moments: 2, Nodes: NodesEqualMass}, false},
 		{"mixture rho=0.9", AR1{Rho: 0.9, Sigma: 0.15, Shock: mixture}, Settings{States: 31, Moments: 4}, false},
 		{"student t nu=6", AR1{Rho: 0.6, Sigma: 1, Shock: Standardized{Base: StudentT{Nu: 6, Scale: 1}}}, Settings{States: 21, Moments: 4}, false},
 		{"laplace", AR1{Rho: 0.6, Sigma: 1, Shock: Standardized{Base: Laplace{Scale: 1}}}, Settings{States: 21, Moments: 4}, false},
@@ -155,7 +155,7 @@ func TestMaxEntExpectationOfExpBeta(t *testing.T) {
 	scipyEval(t, `from scipy.special import hyp1f1; print(json.dumps(float(hyp1f1(2.0, 5.0, 1.0))))`, &exact)
 	prev := math.Inf(1)
 	for L := 1; L <= 4; L++ {
-		d, err := IID{Dist: Beta{Alpha: 2, Beta: 3}}.Discretize(Settings{States: 7, Moments: L, Grid: GridGaussLegendre})
+		d, err := IID{Dist: Beta{Alpha: 2, Beta: 3}}.Discretize(Settings{States: 7, Moments: L, Nodes: NodesGaussLegendre})
 		if err != nil || d.Matched != L {
 			t.Fatalf("L=%d: %+v %v", L, d, err)
 		}
@@ -186,12 +186,12 @@ func TestIIDMatchesMoments(t *testing.T) {
 		"laplace":   Laplace{Loc: -1, Scale: 2},
 	}
 	for name, dist := range dists {
-		for _, g := range []GridRule{GridEven, GridGaussLegendre, GridQuantile} {
-			d, err := IID{Dist: dist}.Discretize(Settings{States: 15, Moments: 4, Grid: g, Width: 4})
+		for _, g := range []NodeRule{NodesLattice, NodesGaussLegendre, NodesEqualMass} {
+			d, err := IID{Dist: dist}.Discretize(Settings{States: 15, Moments: 4, Nodes: g, Width: 4})
 			if err != nil {
 				t.Fatalf("%s/%s: %v", name, g, err)
 			}
-			if g == GridEven && d.Matched != 4 {
+			if g == NodesLattice && d.Matched != 4 {
 				t.Errorf("%s/%s: matched %d of 4", name, g, d.Matched)
 			}
 			got := WeightedMoments(d.Weights, d.Nodes)

@@ -3,6 +3,7 @@ package solver
 import (
 	"fmt"
 	"math"
+	"strings"
 )
 
 // Rule is a quadrature rule: ∫ g(x) ω(x) dx ≈ Σ_i Weights[i] g(Nodes[i]) for
@@ -79,74 +80,76 @@ func Quantiles(n int, d Distribution) Rule {
 	return r
 }
 
-// GridRule names the quadrature rule that places a chain's grid points and
+// NodeRule names the quadrature rule that places a chain's grid points and
 // gives the prior weights.
-type GridRule int
+type NodeRule int
 
 const (
-	// GridEven places even-spaced points (trapezoid weights).
-	GridEven GridRule = iota
-	// GridGaussHermite places Gauss-Hermite nodes for a normal density with the
+	// NodesLattice places equally spaced points over ± the width
+	// (trapezoid weights).
+	NodesLattice NodeRule = iota
+	// NodesGaussHermite places Gauss-Hermite nodes for a normal density with the
 	// target distribution's mean and standard deviation.
-	GridGaussHermite
-	// GridGaussLegendre places Gauss-Legendre nodes on the grid's interval.
-	GridGaussLegendre
-	// GridQuantile places points at quantiles of the (stationary) distribution.
-	GridQuantile
+	NodesGaussHermite
+	// NodesGaussLegendre places Gauss-Legendre nodes on the grid's interval.
+	NodesGaussLegendre
+	// NodesEqualMass places points at quantiles of the (stationary)
+	// distribution, each carrying equal probability mass.
+	NodesEqualMass
 )
 
-var gridRuleNames = [...]string{"even", "gauss-hermite", "gauss-legendre", "quantile"}
+var nodeRuleNames = [...]string{"lattice", "gauss-hermite", "gauss-legendre", "equal-mass"}
 
-func (g GridRule) String() string {
-	if int(g) >= 0 && int(g) < len(gridRuleNames) {
-		return gridRuleNames[g]
+func (g NodeRule) String() string {
+	if int(g) >= 0 && int(g) < len(nodeRuleNames) {
+		return nodeRuleNames[g]
 	}
-	return fmt.Sprintf("GridRule(%d)", int(g))
+	return fmt.Sprintf("NodeRule(%d)", int(g))
 }
 
-// ParseGridRule maps a name ("even", "gauss-hermite", "gauss-legendre",
-// "quantile") to its GridRule.
-func ParseGridRule(s string) (GridRule, error) {
-	for i, n := range gridRuleNames {
+// ParseNodeRule maps a name ("lattice", "gauss-hermite", "gauss-legendre",
+// "equal-mass") to its NodeRule.
+func ParseNodeRule(s string) (NodeRule, error) {
+	for i, n := range nodeRuleNames {
 		if n == s {
-			return GridRule(i), nil
+			return NodeRule(i), nil
 		}
 	}
-	return 0, fmt.Errorf("solver: unknown grid rule %q (want one of even, gauss-hermite, gauss-legendre, quantile)", s)
+	return 0, fmt.Errorf("solver: unknown node rule %q (want one of %s)", s, strings.Join(nodeRuleNames[:], ", "))
 }
 
-// GridRuleNames lists the accepted grid-rule names.
-func GridRuleNames() []string { return append([]string(nil), gridRuleNames[:]...) }
+// NodeRuleNames lists the accepted node-rule names.
+func NodeRuleNames() []string { return append([]string(nil), nodeRuleNames[:]...) }
 
-// DefaultWidth is the half-width, in standard deviations, of even and
+// DefaultWidth is the half-width, in standard deviations, of lattice and
 // Gauss-Legendre grids with n points when none is given: √(n−1), the rule
-// Farmer and Toda (2017) recommend for even grids and the span of the
+// Farmer and Toda (2017) recommend for evenly spaced grids and the span of the
 // Rouwenhorst grid (Kopecky and Suen 2010).
 func DefaultWidth(n int) float64 { return math.Sqrt(float64(n - 1)) }
 
 // placeGrid lays n points for a distribution with the given mean and standard
 // deviation and returns the nodes with the logarithm of their Lebesgue
 // weights (∫ g(x) dx ≈ Σ_i exp(logW[i]) g(x_i)). width is the half-width in
-// standard deviations for even and Gauss-Legendre grids (0 means DefaultWidth).
-// shape is the distribution used by quantile grids.
-func placeGrid(rule GridRule, n int, mean, sd, width float64, shape Distribution) (nodes, logW []float64) {
+// standard deviations for lattice and Gauss-Legendre grids (0 means DefaultWidth).
+// shape is the distribution used by equal-mass grids.
+func placeGrid(rule NodeRule, n int, mean, sd, width float64, shape Distribution) (nodes, logW []float64) {
 	if width <= 0 {
 		width = DefaultWidth(n)
 	}
 	var r Rule
 	logW = make([]float64, n)
 	switch rule {
-	case GridEven:
+	case NodesLattice:
 		r = Trapezoid(n, mean-width*sd, mean+width*sd)
 		for i, w := range r.Weights {
 			logW[i] = math.Log(w)
 		}
-	case GridGaussLegendre:
+	case NodesGaussLegendre:
 		r = GaussLegendre(n, mean-width*sd, mean+width*sd)
 		for i, w := range r.Weights {
 			logW[i] = math.Log(w)
 		}
-	case GridGaussHermite:
+	case NodesGaussHermite:
 		r = GaussHermite(n)
 		scale := math.Sqrt2 * sd
 		for i, z := range r.Nodes {
@@ -154,13 +157,13 @@ func placeGrid(rule GridRule, n int, mean, sd, width float64, shape Distribution
 			logW[i] = math.Log(r.Weights[i]) + z*z + math.Log(scale)
 			r.Nodes[i] = mean + scale*z
 		}
-	case GridQuantile:
+	case NodesEqualMass:
 		r = Quantiles(n, shape)
 		for i, x := range r.Nodes {
 			logW[i] = -math.Log(float64(n)) - shape.LogProb(x)
 		}
 	default:
-		panic(fmt.Sprintf("solver: unknown grid rule %d", int(rule)))
+		panic(fmt.Sprintf("solver: unknown node rule %d", int(rule)))
 	}
 	return r.Nodes, logW
 }

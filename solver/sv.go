@@ -98,7 +98,7 @@ func (p SV) Discretize(level, vol Settings) (*Chain, error) {
 	var nodes, logW []float64
 	switch level.Method {
 	case MaxEnt:
-		nodes, logW = placeGrid(level.Grid, ny, p.Mean, sdY, level.Width, Normal{p.Mean, sdY})
+		nodes, logW = placeGrid(level.Nodes, ny, p.Mean, sdY, level.Width, Normal{p.Mean, sdY})
 	case Tauchen:
 		w := level.Width
 		if w == 0 {

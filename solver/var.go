@@ -183,7 +183,7 @@ func checkTensorStates(n, d int) error {
 // with the chosen method:
 //
 //   - MaxEnt: a tensor grid along s.Axes (principal axes of Σ by default),
-//     each axis laid by the quadrature rule s.Grid over ±s.Width stationary
+//     each axis laid by the quadrature rule s.Nodes over ±s.Width stationary
 //     standard deviations (default √(N−1)); in every state the transition
 //     row matches the exact conditional means, covariances and (for
 //     s.Moments ≥ 3) marginal third and fourth moments, falling back to fewer
@@ -234,7 +234,7 @@ func (p VAR) maxent(s Settings, L int) *Chain {
 func (p VAR) maxentProblem(s Settings) (grid, logWeights []float64, law gaussianVectorLaw) {
 	d := p.Dim()
 	mu, sigma := p.StationaryMean(), p.StationaryCov()
-	nodes, logW := placeGrid(s.Grid, s.States, 0, 1, s.Width, Normal{0, 1})
+	nodes, logW := placeGrid(s.Nodes, s.States, 0, 1, s.Width, Normal{0, 1})
 	grid, logWeights = tensorGrid(mu, axisFrame(s.Axes, sigma, d), d, nodes, logW)
 	n := len(logWeights)
 	means := make([]float64, n*d)

@@ -40,7 +40,7 @@ func TestVARMatchesConditionalMoments(t *testing.T) {
 		{"d2-moderate-coordinate", varModerate, Settings{States: 9, Axes: AxesCoordinate}, 60},
 		{"d2-moderate-4moments", varModerate, Settings{States: 9, Moments: 4}, 1},
 		{"d2-persistent", varPersistent, Settings{States: 9}, 73},
-		{"d2-gauss-hermite", varModerate, Settings{States: 7, Grid: GridGaussHermite}, 1},
+		{"d2-gauss-hermite", varModerate, Settings{States: 7, Nodes: NodesGaussHermite}, 1},
 		{"d3", varThree, Settings{States: 7}, 343},
 		{"d3-5states", varThree, Settings{States: 5}, 100},
 	}
@@ -156,7 +156,7 @@ func TestVARStationaryCovarianceLyapunov(t *testing.T) {
 	}{
 		{"d2-moderate", varModerate, Settings{States: 9}},
 		{"d2-moderate-narrow", varModerate, Settings{States: 9, Width: 2.5}},
-		{"d2-moderate-gauss-legendre", varModerate, Settings{States: 7, Grid: GridGaussLegendre}},
+		{"d2-moderate-gauss-legendre", varModerate, Settings{States: 7, Nodes: NodesGaussLegendre}},
 		{"d3", varThree, Settings{States: 7}},
 	} {
 		t.Run(tc.name, func(t *testing.T) {

@@ -27,27 +27,27 @@ func TestWhyCasesAgainstLP(t *testing.T) {
 	for _, c := range []struct {
 		rho  float64
 		n, L int
-		g    GridRule
+		g    NodeRule
 		want []int
 	}{
 		// Was the identity matrix: 0 or 1 moments in every state.
-		{0.995, 5, 4, GridEven, []int{2, 2, 2, 2, 2}},
-		{0.995, 9, 4, GridGaussHermite, []int{1, 1, 1, 2, 2, 2, 1, 1, 1}},
-		{0.99, 5, 4, GridEven, []int{2, 2, 2, 2, 2}},
-		{0.99, 9, 4, GridEven, []int{2, 2, 2, 2, 2, 2, 2, 2, 2}},
-		{0.99, 5, 4, GridGaussHermite, []int{1, 2, 2, 2, 1}},
-		{0.99, 9, 4, GridGaussHermite, []int{1, 1, 1, 2, 2, 2, 1, 1, 1}},
-		{0.99, 5, 4, GridGaussLegendre, []int{2, 2, 2, 2, 2}},
-		{0.99, 9, 4, GridGaussLegendre, []int{2, 2, 2, 2, 2, 2, 2, 2, 2}},
-		{0.99, 5, 4, GridQuantile, []int{2, 2, 2, 2, 2}},
-		{0.99, 9, 4, GridQuantile, []int{2, 2, 2, 2, 2, 2, 2, 2, 2}},
+		{0.995, 5, 4, NodesLattice, []int{2, 2, 2, 2, 2}},
+		{0.995, 9, 4, NodesGaussHermite, []int{1, 1, 1, 2, 2, 2, 1, 1, 1}},
+		{0.99, 5, 4, NodesLattice, []int{2, 2, 2, 2, 2}},
+		{0.99, 9, 4, NodesLattice, []int{2, 2, 2, 2, 2, 2, 2, 2, 2}},
+		{0.99, 5, 4, NodesGaussHermite, []int{1, 2, 2, 2, 1}},
+		{0.99, 9, 4, NodesGaussHermite, []int{1, 1, 1, 2, 2, 2, 1, 1, 1}},
+		{0.99, 5, 4, NodesGaussLegendre, []int{2, 2, 2, 2, 2}},
+		{0.99, 9, 4, NodesGaussLegendre, []int{2, 2, 2, 2, 2, 2, 2, 2, 2}},
+		{0.99, 5, 4, NodesEqualMass, []int{2, 2, 2, 2, 2}},
+		{0.99, 9, 4, NodesEqualMass, []int{2, 2, 2, 2, 2, 2, 2, 2, 2}},
 		// Mirror states treated differently: was [1 2 2 2 2 2 2 2 2].
-		{0.99, 9, 2, GridEven, []int{2, 2, 2, 2, 2, 2, 2, 2, 2}},
+		{0.99, 9, 2, NodesLattice, []int{2, 2, 2, 2, 2, 2, 2, 2, 2}},
 		// Exited 1 with +Inf in the JSON.
-		{0.999, 9, 4, GridGaussHermite, []int{1, 1, 1, 2, 2, 2, 1, 1, 1}},
+		{0.999, 9, 4, NodesGaussHermite, []int{1, 1, 1, 2, 2, 2, 1, 1, 1}},
 	} {
 		p := AR1{Rho: c.rho, Sigma: 0.1}
-		ch, err := p.Discretize(Settings{States: c.n, Moments: c.L, Grid: c.g})
+		ch, err := p.Discretize(Settings{States: c.n, Moments: c.L, Nodes: c.g})
 		if err != nil {
 			t.Fatal(err)
 		}
@@ -132,11 +132,11 @@ func TestMirrorSymmetry(t *testing.T) {
 		if sh.name == "mixture" {
 			continue // skewed
 		}
-		for g := GridEven; g <= GridQuantile; g++ {
+		for g := NodesLattice; g <= NodesEqualMass; g++ {
 			for _, rho := range []float64{0.5, 0.95, 0.99} {
 				for _, n := range []int{8, 9, 21} {
 					t.Run(fmt.Sprintf("%s/%s/rho=%g/N=%d", sh.name, g, rho, n), func(t *testing.T) {
-						c, err := AR1{Rho: rho, Sigma: 0.1, Shock: sh.shock}.Discretize(Settings{States: n, Moments: 4, Grid: g})
+						c, err := AR1{Rho: rho, Sigma: 0.1, Shock: sh.shock}.Discretize(Settings{States: n, Moments: 4, Nodes: g})
 						if err != nil {
 							t.Fatal(err)
 						}

@@ -150,7 +150,7 @@ func newAccuracyVARCmd() *cobra.Command {
 	)
 	methods := []string{"maxent", "tauchen"}
 	cmd := &cobra.Command{
-		Use:   "var --coef B --cov PSI [--intercept C] --states N [flags]",
+		Use:   "var --coef LIST --cov LIST [--intercept LIST] --states N [flags]",
 		Short: "Accuracy study for a Gaussian VAR(1) (matrices as row-major lists)",
 		Args:  cobra.NoArgs,
 		RunE: func(cmd *cobra.Command, _ []string) error {
@@ -161,7 +161,7 @@ func newAccuracyVARCmd() *cobra.Command {
 			if err := axisStates(states, p.Dim()); err != nil {
 				return err
 			}
-			if err := choice("grid-axes", axes, solver.GridAxesNames()); err != nil {
+			if err := choice("axes", axes, solver.GridAxesNames()); err != nil {
 				return err
 			}
 			cfg, ms, err := sf.config(methods)
@@ -188,7 +188,7 @@ func newAccuracyVARCmd() *cobra.Command {
 	fs := cmd.Flags()
 	vf.register(fs)
 	fs.IntVar(&states, "states", 9, "grid points per axis")
-	fs.StringVar(&axes, "grid-axes", "principal", "maxent grid orientation: principal or coordinate")
+	fs.StringVar(&axes, "axes", "principal", "maxent grid orientation: principal (axes of the stationary covariance) or coordinate")
 	sf.register(fs, methods)
 	return cmd
 }

@@ -51,7 +51,7 @@ func TestAccuracyAR1Text(t *testing.T) {
 	if code != 0 {
 		t.Fatalf("exit %d: %s", code, errOut)
 	}
-	for _, want := range []string{"population least squares", "true process", "rouwenhorst", "tauchen-hussey", "rho", "sigma2"} {
+	for _, want := range []string{"population least squares", "true process", "rouwenhorst", "tauchen-hussey", "intercept", "rho", "sigma^2"} {
 		if !strings.Contains(out, want) {
 			t.Errorf("text output lacks %q", want)
 		}

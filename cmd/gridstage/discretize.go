@@ -16,7 +16,7 @@ func newDiscretizeCmd() *cobra.Command {
 
 Kinds:
   ar1   first-order autoregression x' = (1-rho) mean + rho x + sigma z
-  var   vector autoregression x' = c + B x + e, e ~ N(0, Psi)
+  var   vector autoregression x' = intercept + coef x + e, e ~ N(0, cov)
   iid   a static distribution (returns, transitory income) as weighted points
 
 Without --json the grid, the transition matrix and a diagnostics table
@@ -43,7 +43,7 @@ var extraKinds []func() *cobra.Command
 // methodSettings are the flags every discretization shares.
 type methodSettings struct {
 	states, moments int
-	method, grid    string
+	method, nodes   string
 	width           float64
 	floden          bool
 	compare         string
@@ -54,8 +54,8 @@ func (m *methodSettings) register(cmd *cobra.Command, withMethod bool) {
 	fs := cmd.Flags()
 	fs.IntVar(&m.states, "states", 9, "number of grid points (2 to 10000)")
 	fs.IntVar(&m.moments, "moments", 0, "conditional moments to match exactly with maxent (default 4, fewer for heavy-tailed innovations)")
-	fs.StringVar(&m.grid, "grid", "even", "grid rule for maxent: even, gauss-hermite, gauss-legendre or quantile")
-	fs.Float64Var(&m.width, "width", 0, "half-width of even/Gauss-Legendre/Tauchen grids in unconditional s.d. (default sqrt(states-1); 3 for tauchen)")
+	fs.StringVar(&m.nodes, "nodes", "", nodesHelp)
+	fs.Float64Var(&m.width, "width", 0, "half-width of lattice, gauss-legendre and tauchen grids in unconditional s.d. (default sqrt(states-1); 3 for tauchen)")
 	fs.BoolVar(&m.json, "json", false, "print one JSON object instead of tables")
 	if withMethod {
 		fs.StringVar(&m.method, "method", "maxent", "maxent, tauchen, tauchen-hussey or rouwenhorst")
@@ -75,7 +75,8 @@ func (m *methodSettings) settings(cmd *cobra.Command) (solver.Settings, error) {
 			return s, err
 		}
 	}
-	if err := choice("grid", m.grid, solver.GridRuleNames()); err != nil {
+	nodes, err := nodeRule(m.nodes)
+	if err != nil {
 		return s, err
 	}
 	if cmd.Flags().Changed("width") {
@@ -93,14 +94,28 @@ func (m *methodSettings) settings(cmd *cobra.Command) (solver.Settings, error) {
 	if cmd.Flags().Changed("moments") && method != solver.MaxEnt {
 		return s, badInput("--moments applies to --method maxent only: %s matches a fixed set of moments", method)
 	}
-	if cmd.Flags().Changed("grid") && method != solver.MaxEnt {
-		return s, badInput("--grid applies to --method maxent only: %s places its own grid", method)
+	if cmd.Flags().Changed("nodes") && method != solver.MaxEnt {
+		return s, badInput("--nodes applies to --method maxent only: %s places its own grid", method)
 	}
 	if m.floden && method != solver.TauchenHussey {
 		return s, badInput("--floden applies to --method tauchen-hussey only")
 	}
-	grid, _ := solver.ParseGridRule(m.grid)
-	return solver.Settings{States: m.states, Moments: m.moments, Method: method, Grid: grid, Width: m.width, Floden: m.floden}, nil
+	return solver.Settings{States: m.states, Moments: m.moments, Method: method, Nodes: nodes, Width: m.width, Floden: m.floden}, nil
+}
+
+// nodesHelp is the help of --nodes, shared by every discretize kind.
+const nodesHelp = "placement of the grid points (maxent only): lattice (the default; equally spaced over ± width), gauss-hermite, gauss-legendre, or equal-mass (at quantiles of the distribution)"
+
+// nodeRule validates --nodes; empty means the default, lattice.
+func nodeRule(name string) (solver.NodeRule, error) {
+	if name == "" {
+		return solver.NodesLattice, nil
+	}
+	if err := choice("nodes", name, solver.NodeRuleNames()); err != nil {
+		return 0, err
+	}
+	r, _ := solver.ParseNodeRule(name)
+	return r, nil
 }
 
 // entry adds the shared flags to a manifest process entry: states and
@@ -114,8 +129,8 @@ func (m *methodSettings) entry(cmd *cobra.Command, e map[string]any) map[string]
 	}
 	e["method"] = method
 	fs := cmd.Flags()
-	if method == "maxent" {
-		e["grid"] = m.grid
+	if method == "maxent" && m.nodes != "" {
+		e["nodes"] = m.nodes
 	}
 	if fs.Changed("moments") {
 		e["moments"] = m.moments
@@ -153,7 +168,7 @@ func (m *methodSettings) baseline(main solver.Method) (solver.Method, bool, erro
 // paramFlags maps solver parameter names to the flags that set them.
 var paramFlags = map[string]string{
 	"rho": "rho", "sigma": "sigma", "mean": "mean", "states": "states",
-	"moments": "moments", "width": "width", "grid": "grid",
+	"moments": "moments", "width": "width", "nodes": "nodes",
 }
 
 var _ = fmt.Sprint

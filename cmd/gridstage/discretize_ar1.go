@@ -82,14 +82,8 @@ func innovation(s *shockFlags) (solver.Distribution, error) {
 	return nil, nil
 }
 
-// ar1Params records the process for the JSON output.
+// ar1Params records the process for the JSON output, under the keys a
+// manifest uses.
 func ar1Params(p solver.AR1, s shockFlags) map[string]any {
-	m := map[string]any{"rho": p.Rho, "sigma": p.Sigma, "mean": p.Mean, "innovation": s.family}
-	switch s.family {
-	case "t":
-		m["nu"] = s.nu
-	case "mixture":
-		m["mix_weights"], m["mix_means"], m["mix_sds"] = s.mixWeights, s.mixMeans, s.mixSDs
-	}
-	return m
+	return map[string]any{"rho": p.Rho, "sigma": p.Sigma, "mean": p.Mean, "innovation": s.law()}
 }

@@ -17,17 +17,18 @@ func newIIDCmd() *cobra.Command {
 		shock shockFlags
 	)
 	cmd := &cobra.Command{
-		Use:   "iid --dist NAME [parameters] --states N [flags]",
+		Use:   "iid --distribution LAW [parameters] --states N [flags]",
 		Short: "A static distribution as weighted points with exactly matched moments",
 		Long: `A static (i.i.d.) distribution as weighted points with exactly matched moments.
 
-Distributions and their parameters:
-  normal     --mu, --sigma         N(mu, sigma^2)
-  lognormal  --mu, --sigma         exp(N(mu, sigma^2))
-  beta       --alpha, --beta, --lo, --hi   Beta(alpha, beta) on [lo, hi]
-  mixture    --mix-weights, --mix-means, --mix-sds   normal mixture
-  t          --nu, --loc, --scale  loc + scale * t(nu)
-  laplace    --loc, --scale        density exp(-|x-loc|/scale)/(2 scale)`,
+Distributions and their parameters (the keys of a manifest's distribution,
+with - for _):
+  normal     --mean, --sd                        N(mean, sd^2)
+  lognormal  --log-mean, --log-sd                exp(N(log-mean, log-sd^2))
+  beta       --alpha, --beta, --lower, --upper   Beta(alpha, beta) on [lower, upper]
+  mixture    --component (once per component)    normal mixture
+  t          --nu, --location, --scale           location + scale * t(nu)
+  laplace    --location, --scale                 density exp(-|x-location|/scale)/(2 scale)`,
 		Args: cobra.NoArgs,
 		RunE: func(cmd *cobra.Command, _ []string) error {
 			if _, err := ms.settings(cmd); err != nil {
@@ -37,47 +38,55 @@ Distributions and their parameters:
 			if err != nil {
 				return err
 			}
-			entry := ms.entry(cmd, map[string]any{"kind": "iid", "distribution": shock.distributionLaw()})
+			law := shock.distributionLaw()
+			entry := ms.entry(cmd, map[string]any{"kind": "iid", "distribution": law})
 			sol, prov, err := solveEntry(entry)
 			if err != nil {
 				return err
 			}
 			c := sol.Chain
 			out := &solver.Discrete{Nodes: c.Grid, Weights: c.Row(0), Moments: c.Moments, Matched: c.Matched[0]}
-			return printIID(cmd.OutOrStdout(), shock.family, out, solver.IID{Dist: d}, prov, ms.json)
+			return printIID(cmd.OutOrStdout(), law, out, solver.IID{Dist: d}, prov, ms.json)
 		},
 	}
 	fs := cmd.Flags()
 	ms.register(cmd, false)
-	shock.register(fs, "dist", "normal", "distribution: normal, lognormal, beta, mixture, t or laplace")
-	fs.Float64Var(&shock.mu, "mu", 0, "normal: mean; lognormal: mean of the log")
-	fs.Float64Var(&shock.sigma, "sigma", 1, "normal: s.d.; lognormal: s.d. of the log")
+	shock.register(fs, "distribution", "normal", "the law: normal, lognormal, beta, mixture, t or laplace")
+	fs.Float64Var(&shock.mean, "mean", 0, "normal: mean")
+	fs.Float64Var(&shock.sd, "sd", 1, "normal: standard deviation")
+	fs.Float64Var(&shock.logMean, "log-mean", 0, "lognormal: mean of the log")
+	fs.Float64Var(&shock.logSD, "log-sd", 1, "lognormal: standard deviation of the log")
 	fs.Float64Var(&shock.alpha, "alpha", 2, "beta: first shape parameter")
 	fs.Float64Var(&shock.beta, "beta", 2, "beta: second shape parameter")
-	fs.Float64Var(&shock.lo, "lo", 0, "beta: lower end of the support")
-	fs.Float64Var(&shock.hi, "hi", 1, "beta: upper end of the support")
-	fs.Float64Var(&shock.loc, "loc", 0, "t and laplace: location")
+	fs.Float64Var(&shock.lower, "lower", 0, "beta: lower end of the support")
+	fs.Float64Var(&shock.upper, "upper", 1, "beta: upper end of the support")
+	fs.Float64Var(&shock.location, "location", 0, "t and laplace: location")
 	fs.Float64Var(&shock.scale, "scale", 1, "t and laplace: scale")
 	return cmd
 }
 
 // distribution validates the flags of the chosen family.
 func (s *shockFlags) distribution() (solver.Distribution, error) {
-	if err := choice("dist", s.family, []string{"normal", "lognormal", "beta", "mixture", "t", "laplace"}); err != nil {
+	if err := choice("distribution", s.family, []string{"normal", "lognormal", "beta", "mixture", "t", "laplace"}); err != nil {
 		return nil, err
 	}
 	switch s.family {
-	case "normal", "lognormal":
-		if err := finite("mu", s.mu); err != nil {
+	case "normal":
+		if err := finite("mean", s.mean); err != nil {
 			return nil, err
 		}
-		if err := positive("sigma", s.sigma); err != nil {
+		if err := positive("sd", s.sd); err != nil {
 			return nil, err
 		}
-		if s.family == "normal" {
-			return solver.Normal{Mu: s.mu, Sigma: s.sigma}, nil
+		return solver.Normal{Mu: s.mean, Sigma: s.sd}, nil
+	case "lognormal":
+		if err := finite("log-mean", s.logMean); err != nil {
+			return nil, err
 		}
-		return solver.LogNormal{Mu: s.mu, Sigma: s.sigma}, nil
+		if err := positive("log-sd", s.logSD); err != nil {
+			return nil, err
+		}
+		return solver.LogNormal{Mu: s.logMean, Sigma: s.logSD}, nil
 	case "beta":
 		for _, f := range []struct {
 			name string
@@ -87,47 +96,47 @@ func (s *shockFlags) distribution() (solver.Distribution, error) {
 				return nil, err
 			}
 		}
-		if err := finite("lo", s.lo); err != nil {
+		if err := finite("lower", s.lower); err != nil {
 			return nil, err
 		}
-		if err := finite("hi", s.hi); err != nil {
+		if err := finite("upper", s.upper); err != nil {
 			return nil, err
 		}
-		if !(s.hi > s.lo) {
-			return nil, badInput("--hi %g is out of range: want a number above --lo %g", s.hi, s.lo)
+		if !(s.upper > s.lower) {
+			return nil, badInput("--upper %g is out of range: want a number above --lower %g", s.upper, s.lower)
 		}
-		return solver.Beta{Alpha: s.alpha, Beta: s.beta, Lo: s.lo, Hi: s.hi}, nil
+		return solver.Beta{Alpha: s.alpha, Beta: s.beta, Lo: s.lower, Hi: s.upper}, nil
 	case "mixture":
 		return s.mixture()
 	case "t":
 		if err := s.checkNu(2); err != nil {
 			return nil, err
 		}
-		if err := finite("loc", s.loc); err != nil {
+		if err := finite("location", s.location); err != nil {
 			return nil, err
 		}
 		if err := positive("scale", s.scale); err != nil {
 			return nil, err
 		}
-		return solver.StudentT{Nu: s.nu, Loc: s.loc, Scale: s.scale}, nil
+		return solver.StudentT{Nu: s.nu, Loc: s.location, Scale: s.scale}, nil
 	default: // laplace
-		if err := finite("loc", s.loc); err != nil {
+		if err := finite("location", s.location); err != nil {
 			return nil, err
 		}
 		if err := positive("scale", s.scale); err != nil {
 			return nil, err
 		}
-		return solver.Laplace{Loc: s.loc, Scale: s.scale}, nil
+		return solver.Laplace{Loc: s.location, Scale: s.scale}, nil
 	}
 }
 
 type iidJSON struct {
-	Kind        string      `json:"kind"`
-	Dist        string      `json:"dist"`
-	Grid        [][]float64 `json:"grid"`
-	Weights     []float64   `json:"weights"`
-	Moments     int         `json:"moments"`
-	Diagnostics iidDiag     `json:"diagnostics"`
+	Kind         string         `json:"kind"`
+	Distribution map[string]any `json:"distribution"`
+	Grid         [][]float64    `json:"grid"`
+	Weights      []float64      `json:"weights"`
+	Moments      int            `json:"moments"`
+	Diagnostics  iidDiag        `json:"diagnostics"`
 	provenance
 }
 
@@ -137,7 +146,7 @@ type iidDiag struct {
 	True     solver.Moments `json:"true"`
 }
 
-func printIID(w io.Writer, family string, d *solver.Discrete, p solver.IID, prov provenance, asJSON bool) error {
+func printIID(w io.Writer, law map[string]any, d *solver.Discrete, p solver.IID, prov provenance, asJSON bool) error {
 	got := solver.WeightedMoments(d.Weights, d.Nodes)
 	truth := p.Conditional(nil)
 	if asJSON {
@@ -147,10 +156,10 @@ func printIID(w io.Writer, family string, d *solver.Discrete, p solver.IID, prov
 		}
 		enc := json.NewEncoder(w)
 		enc.SetIndent("", "  ")
-		return enc.Encode(iidJSON{Kind: "iid", Dist: family, Grid: grid, Weights: d.Weights, Moments: d.Moments,
+		return enc.Encode(iidJSON{Kind: "iid", Distribution: law, Grid: grid, Weights: d.Weights, Moments: d.Moments,
 			Diagnostics: iidDiag{Matched: d.Matched, Discrete: got, True: truth}, provenance: prov})
 	}
-	fmt.Fprintf(w, "%s distribution, %d points, %d of %d moments matched\n\n", family, len(d.Nodes), d.Matched, d.Moments)
+	fmt.Fprintf(w, "%s distribution, %d points, %d of %d moments matched\n\n", law["law"], len(d.Nodes), d.Matched, d.Moments)
 	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)
 	fmt.Fprintln(tw, "point\tlevel\tweight\t")
 	for i, x := range d.Nodes {

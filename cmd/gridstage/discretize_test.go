@@ -73,7 +73,7 @@ func TestDiscretizeTextShowsBaseline(t *testing.T) {
 }
 
 func TestDiscretizeIIDJSON(t *testing.T) {
-	code, out, errOut := run(t, "discretize", "iid", "--dist", "beta", "--alpha", "2", "--beta", "5", "--states", "9", "--json")
+	code, out, errOut := run(t, "discretize", "iid", "--distribution", "beta", "--alpha", "2", "--beta", "5", "--states", "9", "--json")
 	if code != 0 {
 		t.Fatalf("exit %d: %s", code, errOut)
 	}
@@ -111,8 +111,8 @@ func TestDiscretizeBadInput(t *testing.T) {
 		{[]string{"discretize", "ar1", "--rho", "0.5", "--sigma", "1", "--bogus"}, "unknown flag: --bogus"},
 		{[]string{"discretize", "ar1", "--sigma", "1"}, "--rho is required"},
 		{[]string{"discretize", "ar2"}, `unknown process kind "ar2"`},
-		{[]string{"discretize", "iid", "--dist", "beta", "--lo", "1", "--hi", "0"}, "--hi 0 is out of range"},
-		{[]string{"discretize", "iid", "--dist", "mixture", "--mix-weights", "0.5,0.4", "--mix-means", "0,1", "--mix-sds", "1,1"}, "--mix-weights sum to 0.9: want 1"},
+		{[]string{"discretize", "iid", "--distribution", "beta", "--lower", "1", "--upper", "0"}, "--upper 0 is out of range"},
+		{[]string{"discretize", "iid", "--distribution", "mixture", "--component", "weight=0.5,mean=0,sd=1", "--component", "weight=0.4,mean=1,sd=1"}, "--component weights sum to 0.9: want 1"},
 	}
 	for _, c := range cases {
 		code, out, errOut := run(t, c.args...)

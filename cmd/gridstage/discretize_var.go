@@ -19,7 +19,7 @@ func init() { extraKinds = append(extraKinds, newVARCmd) }
 type varSettings struct {
 	states, moments int
 	method, axes    string
-	grid, compare   string
+	nodes, compare  string
 	width           float64
 	json            bool
 }
@@ -30,12 +30,13 @@ func newVARCmd() *cobra.Command {
 		vs varSettings
 	)
 	cmd := &cobra.Command{
-		Use:   "var --coef B --cov PSI [--intercept C] --states N [flags]",
-		Short: "VAR(1): x' = c + B x + e, e ~ N(0, Psi), matrices as row-major lists",
-		Long: `VAR(1): x' = c + B x + e, e ~ N(0, Psi), of dimension d from 1 to 4.
+		Use:   "var --coef LIST --cov LIST [--intercept LIST] --states N [flags]",
+		Short: "VAR(1): x' = intercept + coef x + e, e ~ N(0, cov), matrices as row-major lists",
+		Long: `VAR(1): x' = intercept + coef x + e, e ~ N(0, cov), of dimension d from 1 to 4.
 
-Matrices are row-major comma-separated lists: --coef 0.9,0.1,0,0.8 is
-B = [[0.9, 0.1], [0, 0.8]]. --states is the number of points per axis, so
+Matrices are row-major comma-separated lists: --coef 0.9,0.1,0,0.8 is the
+coefficient matrix [[0.9, 0.1], [0, 0.8]], so coef[1,2] = 0.1 (rows and
+columns counted from 1). --states is the number of points per axis, so
 the chain has states^d states, numbered row-major over the axes (the first
 axis varies slowest).
 
@@ -70,9 +71,9 @@ VAR construction.`,
 	vf.register(fs)
 	fs.IntVar(&vs.states, "states", 9, "grid points per axis (the chain has states^d states)")
 	fs.StringVar(&vs.method, "method", "maxent", "maxent or tauchen")
-	fs.StringVar(&vs.axes, "grid-axes", "principal", "maxent grid orientation: principal (axes of the stationary covariance) or coordinate")
+	fs.StringVar(&vs.axes, "axes", "principal", "maxent grid orientation: principal (axes of the stationary covariance) or coordinate")
 	fs.IntVar(&vs.moments, "moments", 0, "maxent moment level: 1 means, 2 also covariances (default), 3 or 4 also marginal third and fourth moments")
-	fs.StringVar(&vs.grid, "grid", "even", "maxent rule along each axis: even, gauss-hermite, gauss-legendre or quantile")
+	fs.StringVar(&vs.nodes, "nodes", "", "placement of the grid points along each axis (maxent only): lattice (the default; equally spaced over ± width), gauss-hermite, gauss-legendre, or equal-mass (at quantiles)")
 	fs.Float64Var(&vs.width, "width", 0, "half-width of each axis in stationary s.d. (default sqrt(states-1) for maxent, 3 for tauchen)")
 	fs.StringVar(&vs.compare, "compare", "", "baseline shown beside the chain: maxent, tauchen or none (default tauchen; maxent when --method is tauchen)")
 	fs.BoolVar(&vs.json, "json", false, "print one JSON object instead of tables")
@@ -88,15 +89,16 @@ func (v *varSettings) settings(cmd *cobra.Command, d int) (solver.Settings, erro
 	if err := choice("method", v.method, []string{"maxent", "tauchen"}); err != nil {
 		return s, err
 	}
-	if err := choice("grid-axes", v.axes, solver.GridAxesNames()); err != nil {
+	if err := choice("axes", v.axes, solver.GridAxesNames()); err != nil {
 		return s, err
 	}
-	if err := choice("grid", v.grid, solver.GridRuleNames()); err != nil {
+	nodes, err := nodeRule(v.nodes)
+	if err != nil {
 		return s, err
 	}
 	method, _ := solver.ParseMethod(v.method)
 	if method != solver.MaxEnt {
-		for _, f := range []string{"moments", "grid", "grid-axes"} {
+		for _, f := range []string{"moments", "nodes", "axes"} {
 			if cmd.Flags().Changed(f) {
 				return s, badInput("--%s applies to --method maxent only: tauchen places its own grid and matches no moments exactly", f)
 			}
@@ -113,8 +115,7 @@ func (v *varSettings) settings(cmd *cobra.Command, d int) (solver.Settings, erro
 		}
 	}
 	axes, _ := solver.ParseGridAxes(v.axes)
-	grid, _ := solver.ParseGridRule(v.grid)
-	return solver.Settings{States: v.states, Method: method, Moments: v.moments, Grid: grid, Width: v.width, Axes: axes}, nil
+	return solver.Settings{States: v.states, Method: method, Moments: v.moments, Nodes: nodes, Width: v.width, Axes: axes}, nil
 }
 
 // entry returns the process as a manifest entry: matrices as lists of
@@ -134,7 +135,10 @@ func (v *varSettings) entry(cmd *cobra.Command, p solver.VAR) map[string]any {
 	}
 	fs := cmd.Flags()
 	if v.method == "maxent" {
-		e["grid"], e["grid_axes"] = v.grid, v.axes
+		e["axes"] = v.axes
+		if v.nodes != "" {
+			e["nodes"] = v.nodes
+		}
 	}
 	if fs.Changed("moments") {
 		e["moments"] = v.moments
@@ -184,7 +188,7 @@ type varJSON struct {
 	Process     map[string]any           `json:"process"`
 	Method      string                   `json:"method"`
 	Moments     int                      `json:"moments"`
-	GridAxes    string                   `json:"grid_axes,omitempty"`
+	Axes        string                   `json:"axes,omitempty"`
 	Grid        [][]float64              `json:"grid"`
 	Transition  [][]float64              `json:"transition"`
 	Stationary  []float64                `json:"stationary"`
@@ -207,7 +211,7 @@ func (r varReport) print(w io.Writer, asJSON bool) error {
 			Grid: gridRows(r.Chain), Transition: transitionRows(r.Chain), Stationary: r.Diag.Stationary,
 			Matched: r.Chain.Matched, Diagnostics: r.Diag, provenance: r.Provenance}
 		if r.Chain.Method == solver.MaxEnt {
-			j.GridAxes = r.Settings.Axes.String()
+			j.Axes = r.Settings.Axes.String()
 		}
 		if r.Baseline != nil {
 			j.Baseline = &varBaselineJSON{Method: r.Baseline.Method.String(), Grid: gridRows(r.Baseline),
@@ -233,7 +237,7 @@ func (r varReport) printText(w io.Writer) error {
 
 	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)
 	head := "state\t"
-	for k := 1; k <= d; k++ {
+	for k := 0; k < d; k++ {
 		head += fmt.Sprintf("x%d\t", k)
 	}
 	fmt.Fprintln(tw, head+"stationary\tmatched\tmean err\tcov err\t")
@@ -249,7 +253,7 @@ func (r varReport) printText(w io.Writer) error {
 		fmt.Fprintf(tw, "%s%.4g\t%d\t%s\t%s\t\n", line, pi, st.Matched, sci(maxAbsOf(st.MeanErr)), sci(maxAbsOf(st.CovErr)))
 	}
 	tw.Flush()
-	fmt.Fprintln(w, "(largest error over components, in standardized units: L^-1 (mean error), L^-1 (cov error) L^-T with Psi = L L^T)")
+	fmt.Fprintln(w, "(largest error over components, in standardized units: L^-1 (mean error), L^-1 (cov error) L^-T with L L^T = cov)")
 	fmt.Fprintln(w, "transition matrix: use --json")
 
 	fmt.Fprintln(w, "\nstationary moments")
@@ -282,20 +286,20 @@ func (r varReport) printText(w io.Writer) error {
 		}
 	}
 	for k := 0; k < d; k++ {
-		row(fmt.Sprintf("mean x%d", k+1), stationary(func(s solver.VectorSummary, _ []float64) float64 { return s.Mean[k] }))
+		row(fmt.Sprintf("mean x%d", k), stationary(func(s solver.VectorSummary, _ []float64) float64 { return s.Mean[k] }))
 	}
 	for k := 0; k < d; k++ {
 		for l := k; l < d; l++ {
-			row(fmt.Sprintf("cov x%d x%d", k+1, l+1), stationary(func(s solver.VectorSummary, _ []float64) float64 { return s.Cov[k*d+l] }))
+			row(fmt.Sprintf("cov x%d x%d", k, l), stationary(func(s solver.VectorSummary, _ []float64) float64 { return s.Cov[k*d+l] }))
 		}
 	}
 	for k := 0; k < d; k++ {
 		for l := 0; l < d; l++ {
-			row(fmt.Sprintf("corr(x%d', x%d)", k+1, l+1), stationary(func(_ solver.VectorSummary, a []float64) float64 { return a[k*d+l] }))
+			row(fmt.Sprintf("corr(x%d', x%d)", k, l), stationary(func(_ solver.VectorSummary, a []float64) float64 { return a[k*d+l] }))
 		}
 	}
 	tw.Flush()
-	fmt.Fprintln(w, "(true covariance: the discrete Lyapunov solution of Sigma = B Sigma B' + Psi)")
+	fmt.Fprintln(w, "(true covariance S: the discrete Lyapunov solution of S = coef S coef' + cov)")
 
 	fmt.Fprintln(w, "\nworst errors (standardized units)")
 	tw = tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)

@@ -14,7 +14,7 @@ func TestDiscretizeVARJSON(t *testing.T) {
 	}{
 		{[]string{"--coef", "0.9", "--cov", "0.01", "--states", "7"}, 1, 7},
 		{[]string{"--coef", "0.9,0.1,0,0.8", "--cov", "0.01,0,0,0.02", "--states", "9"}, 2, 81},
-		{[]string{"--coef", "0.9,0.1,0,0.8", "--cov", "0.01,0.004,0.004,0.02", "--intercept", "0.1,-0.1", "--states", "6", "--grid-axes", "coordinate"}, 2, 36},
+		{[]string{"--coef", "0.9,0.1,0,0.8", "--cov", "0.01,0.004,0.004,0.02", "--intercept", "0.1,-0.1", "--states", "6", "--axes", "coordinate"}, 2, 36},
 		{[]string{"--coef", "0.9,0.05,0,0.02,0.85,0.03,0,0.1,0.8", "--cov", "0.01,0.002,0,0.002,0.02,0.001,0,0.001,0.015", "--states", "5"}, 3, 125},
 	} {
 		args := append([]string{"discretize", "var", "--json"}, tc.args...)
@@ -74,7 +74,7 @@ func TestDiscretizeVARText(t *testing.T) {
 	if code != 0 {
 		t.Fatalf("exit %d: %s", code, errOut)
 	}
-	for _, want := range []string{"method tauchen", "stationary moments", "maxent", "Lyapunov", "corr(x1', x2)"} {
+	for _, want := range []string{"method tauchen", "stationary moments", "maxent", "Lyapunov", "corr(x0', x1)"} {
 		if !strings.Contains(out, want) {
 			t.Errorf("text output lacks %q", want)
 		}
@@ -94,15 +94,15 @@ func TestDiscretizeVARBadInput(t *testing.T) {
 		{[]string{"--coef", "0.9,0.1,0", "--cov", "1"}, "--coef has 3 entries: want d*d for a dimension d from 1 to 4"},
 		{[]string{"--coef", "0.5,0,0,0.5", "--cov", "1"}, "--cov has 1 entries: want 4"},
 		{[]string{"--coef", "0.5,0,0,0.5", "--cov", "1,2,2,1"}, "--cov is not positive definite: its smallest eigenvalue is -1"},
-		{[]string{"--coef", "0.5,0,0,0.5", "--cov", "1,0.1,0.2,1"}, "--cov is not symmetric: entry (1,2) = 0.1 but (2,1) = 0.2"},
+		{[]string{"--coef", "0.5,0,0,0.5", "--cov", "1,0.1,0.2,1"}, "--cov is not symmetric: cov[1,2] = 0.1 but cov[2,1] = 0.2"},
 		{[]string{"--coef", "0.5,0,0,0.5", "--cov", "1,0,0,NaN"}, "--cov entry 4 = NaN is out of range"},
 		{[]string{"--cov", "1"}, "--coef is required"},
 		{append(ok, "--intercept", "1"), "--intercept has 1 entries: want 2"},
 		{append(ok, "--states", "101"), "--states 101 is out of range: want an integer from 2 to 100 per axis for a 2-dimensional VAR"},
 		{append(ok, "--states", "1"), "--states 1 is out of range"},
 		{append(ok, "--method", "rouwenhorst"), `--method "rouwenhorst" is not recognised: want one of maxent, tauchen`},
-		{append(ok, "--method", "tauchen", "--grid-axes", "coordinate"), "--grid-axes applies to --method maxent only"},
-		{append(ok, "--grid-axes", "diagonal"), `--grid-axes "diagonal" is not recognised: want one of principal, coordinate`},
+		{append(ok, "--method", "tauchen", "--axes", "coordinate"), "--axes applies to --method maxent only"},
+		{append(ok, "--axes", "diagonal"), `--axes "diagonal" is not recognised: want one of principal, coordinate`},
 		{append(ok, "--moments", "5"), "--moments 5 is out of range: want an integer from 1 to 4"},
 		{append(ok, "--width", "0"), "--width 0 is out of range"},
 		{append(ok, "--compare", "rouwenhorst"), `--compare "rouwenhorst" is not recognised`},

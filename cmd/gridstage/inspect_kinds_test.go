@@ -50,8 +50,8 @@ func TestInspectVector(t *testing.T) {
 	if code != 0 {
 		t.Fatalf("exit %d: %s", code, errOut)
 	}
-	for _, want := range []string{"var chain (d = 2), method maxent, 9 states", "x1", "x2", "mean err", "cov err",
-		"transition matrix (row = from, column = to)", "stationary moments", "cov x1 x2", "tauchen", "stationary covariance"} {
+	for _, want := range []string{"var chain (d = 2), method maxent, 9 states", "x0", "x1", "mean err", "cov err",
+		"transition matrix (row = from, column = to)", "stationary moments", "cov x0 x1", "tauchen", "stationary covariance"} {
 		if !strings.Contains(out, want) {
 			t.Errorf("inspect of a VAR does not show %q:\n%s", want, out)
 		}

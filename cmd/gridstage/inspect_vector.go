@@ -23,8 +23,8 @@ func levelList(levels []float64) string {
 	return strings.Join(parts, " ")
 }
 
-// printVectorRecord shows a chain whose state is a vector (kinds var, sv,
-// product): each state's vector with the largest standardized errors of
+// printVectorRecord shows a chain whose state is a vector (kinds var,
+// ar1-volatility, product): each state's vector with the largest standardized errors of
 // its conditional mean vector and covariance matrix, the transition matrix
 // when it is small, and the stationary moments of chain and process.
 func printVectorRecord(w io.Writer, kind string, rec *formats.Record) error {
@@ -32,21 +32,21 @@ func printVectorRecord(w io.Writer, kind string, rec *formats.Record) error {
 	d, n := c.Dim, c.States()
 	fmt.Fprintf(w, "%s chain (d = %d), method %s, %d states, %d moments requested, %d of %d states matched them all\n",
 		kind, d, c.Method, n, c.Moments, n-c.Fallbacks(), n)
-	if kind == "sv" {
-		fmt.Fprintln(w, "(x1 is the level, x2 the log-variance)")
+	if kind == "ar1-volatility" {
+		fmt.Fprintln(w, "(x0 is the level, x1 the log-variance)")
 	}
 	fmt.Fprintln(w)
 
 	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)
 	head := "state\t"
-	for k := 1; k <= d; k++ {
+	for k := 0; k < d; k++ {
 		head += fmt.Sprintf("x%d\t", k)
 	}
 	head += "stationary\tmatched\t"
 	if v != nil {
 		head += "mean err\tcov err\t"
 	} else {
-		head += "x1 mean err\tx1 var err\t"
+		head += "x0 mean err\tx0 var err\t"
 	}
 	fmt.Fprintln(tw, head)
 	for i := 0; i < n; i++ {
@@ -109,11 +109,11 @@ func printVectorRecord(w io.Writer, kind string, rec *formats.Record) error {
 		fmt.Fprintln(tw, line)
 	}
 	for k := 0; k < d; k++ {
-		row(fmt.Sprintf("mean x%d", k+1), func(x *formats.VectorDiag) []float64 { return x.ChainMean }, v.TrueMean, k)
+		row(fmt.Sprintf("mean x%d", k), func(x *formats.VectorDiag) []float64 { return x.ChainMean }, v.TrueMean, k)
 	}
 	for k := 0; k < d; k++ {
 		for l := k; l < d; l++ {
-			row(fmt.Sprintf("cov x%d x%d", k+1, l+1), func(x *formats.VectorDiag) []float64 { return x.ChainCov }, v.TrueCov, k*d+l)
+			row(fmt.Sprintf("cov x%d x%d", k, l), func(x *formats.VectorDiag) []float64 { return x.ChainCov }, v.TrueCov, k*d+l)
 		}
 	}
 	tw.Flush()

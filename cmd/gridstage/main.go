@@ -40,7 +40,7 @@ func newRoot() *cobra.Command {
 		SilenceErrors: true,
 	}
 	root.SetFlagErrorFunc(func(_ *cobra.Command, err error) error {
-		return &usageError{msg: err.Error()}
+		return flagHint(err)
 	})
 	root.AddCommand(newDiscretizeCmd())
 	for _, add := range extraCommands {

@@ -55,34 +55,25 @@ func (p provenance) printText(w io.Writer) {
 	fmt.Fprintf(w, "\nspec hash %s\nchain hash %s\nnumeric version %s, gridstage %s\n", p.SpecHash, p.ChainHash, p.Numeric, p.Tool)
 }
 
-// entryFlags maps manifest keys (the last part of a field path, indices
-// removed) to the flags of `discretize` that set them, where they differ.
-var entryFlags = map[string]string{
-	"log_mean": "mu", "log_sd": "sigma", "lower": "lo", "upper": "hi", "location": "loc",
-	"grid_axes": "grid-axes", "components": "mix-weights", "weight": "mix-weights", "sd": "mix-sds",
-}
-
-var indexPart = regexp.MustCompile(`\[\d+\]`)
-
 // entryError reports the first problem the manifest rules find with the
-// flags' process as bad input naming the flag.
+// flags' process as bad input naming the flag. Flags carry the manifest's
+// names with - for _, but for a mixture's components, which are repeated
+// --component flags.
 func entryError(err error) error {
 	var list manifests.ErrorList
 	if !errors.As(err, &list) || len(list) == 0 || list[0].Field == "" {
 		return badInput("these flags describe no valid process: %v", err)
 	}
 	e := list[0]
-	path := strings.Split(indexPart.ReplaceAllString(e.Field, ""), ".")
+	path := strings.Split(e.Field, ".")
 	key := path[len(path)-1]
 	switch {
-	case path[0] == "distribution" && key == "mean":
-		key = "mu"
-	case path[0] == "distribution" && key == "sd":
-		key = "sigma"
-	case path[0] == "innovation" && key == "mean":
-		key = "mix-means"
-	case entryFlags[key] != "":
-		key = entryFlags[key]
+	case strings.Contains(e.Field, "components"):
+		key = "component"
+	case key == "law":
+		key = path[0] // --innovation or --distribution
 	}
-	return badInput("--%s %s", key, e.Msg)
+	return badInput("--%s %s", strings.ReplaceAll(indexPart.ReplaceAllString(key, ""), "_", "-"), e.Msg)
 }
+
+var indexPart = regexp.MustCompile(`\[\d+\]`)

@@ -40,7 +40,53 @@ func choice(flag, value string, allowed []string) error {
 			return nil
 		}
 	}
+	if now, ok := renamedValues[value]; ok && contains(allowed, now) {
+		return badInput("--%s %q is not recognised: did you mean %q? (%q is the former name)", flag, value, now, value)
+	}
 	return badInput("--%s %q is not recognised: want one of %s", flag, value, strings.Join(allowed, ", "))
+}
+
+// renamedValues maps flag values that earlier versions accepted to their
+// current spelling (the same renames as in manifests).
+var renamedValues = map[string]string{"even": "lattice", "quantile": "equal-mass"}
+
+// renamedFlags maps flags that earlier versions accepted to the flag that
+// now takes their place, named after the manifest key it stands for.
+var renamedFlags = map[string]string{
+	"grid":        "--nodes",
+	"grid-axes":   "--axes",
+	"dist":        "--distribution",
+	"mu":          "--mean (normal) or --log-mean (lognormal)",
+	"sigma":       "--sd (normal) or --log-sd (lognormal)",
+	"lo":          "--lower",
+	"hi":          "--upper",
+	"loc":         "--location",
+	"mix-weights": "--component weight=W,mean=M,sd=S (once per component)",
+	"mix-means":   "--component weight=W,mean=M,sd=S (once per component)",
+	"mix-sds":     "--component weight=W,mean=M,sd=S (once per component)",
+}
+
+// flagHint adds the current spelling to pflag's "unknown flag: --NAME"
+// when NAME is a former flag.
+func flagHint(err error) error {
+	const prefix = "unknown flag: --"
+	msg := err.Error()
+	if !strings.HasPrefix(msg, prefix) {
+		return &usageError{msg: msg}
+	}
+	if now, ok := renamedFlags[strings.TrimPrefix(msg, prefix)]; ok {
+		return &usageError{msg: msg + ": did you mean " + now + "? (the former name)"}
+	}
+	return &usageError{msg: msg}
+}
+
+func contains(list []string, s string) bool {
+	for _, x := range list {
+		if x == s {
+			return true
+		}
+	}
+	return false
 }
 
 // needPositiveInt validates an integer flag's range.

@@ -12,15 +12,15 @@ import (
 )
 
 // varFlags describe a VAR(1) x' = c + B x + ε, ε ~ N(0, Ψ), on the command
-// line as row-major comma-separated lists.
+// line as row-major comma-separated lists: --intercept c, --coef B, --cov Ψ.
 type varFlags struct {
 	coef, cov, intercept []float64
 }
 
 func (f *varFlags) register(fs *pflag.FlagSet) {
-	fs.Float64SliceVar(&f.coef, "coef", nil, "coefficient matrix B, row-major, d*d entries for d from 1 to 4 (required)")
-	fs.Float64SliceVar(&f.cov, "cov", nil, "innovation covariance Psi, row-major, d*d entries, symmetric positive definite (required)")
-	fs.Float64SliceVar(&f.intercept, "intercept", nil, "intercept c, d entries (default zeros)")
+	fs.Float64SliceVar(&f.coef, "coef", nil, "coefficient matrix, row-major, d*d entries for d from 1 to 4 (required)")
+	fs.Float64SliceVar(&f.cov, "cov", nil, "innovation covariance matrix, row-major, d*d entries, symmetric positive definite (required)")
+	fs.Float64SliceVar(&f.intercept, "intercept", nil, "intercept, d entries (default zeros)")
 }
 
 // process validates the flags and returns the VAR; every error names the
@@ -55,7 +55,7 @@ func (f *varFlags) process(cmd *cobra.Command) (solver.VAR, error) {
 	for k := 0; k < d; k++ {
 		for l := k + 1; l < d; l++ {
 			if a, b := f.cov[k*d+l], f.cov[l*d+k]; a != b {
-				return p, badInput("--cov is not symmetric: entry (%d,%d) = %g but (%d,%d) = %g", k+1, l+1, a, l+1, k+1, b)
+				return p, badInput("--cov is not symmetric: cov[%d,%d] = %g but cov[%d,%d] = %g", k+1, l+1, a, l+1, k+1, b)
 			}
 		}
 	}

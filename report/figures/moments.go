@@ -129,7 +129,7 @@ func momentsFigure(c Case, m MomentErrors) Figure {
 		sub += " · baseline " + m.Series[1].Method
 	}
 	if c.Chain.Dim > 1 {
-		sub += fmt.Sprintf(" · errors of component 1 of %d", c.Chain.Dim)
+		sub += fmt.Sprintf(" · errors of x0, the first of %d levels", c.Chain.Dim)
 	}
 	return Figure{
 		Name:    "errors",

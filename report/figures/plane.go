@@ -106,7 +106,7 @@ const axisSpan = 2
 // planeFigure draws the states as circles of area proportional to their
 // stationary probability, with the principal axes.
 func planeFigure(c Case, pl Plane) Figure {
-	sub := fmt.Sprintf("%s, %d states · components 1 and 2 of %d · axes span ±%d s.d.", c.Chain.Method, len(pl.X), c.Chain.Dim, axisSpan)
+	sub := fmt.Sprintf("%s, %d states · levels x0 and x1 of %d · axes span ±%d s.d.", c.Chain.Method, len(pl.X), c.Chain.Dim, axisSpan)
 	return Figure{
 		Name:    "plane",
 		Title:   "States in the plane",
@@ -114,7 +114,7 @@ func planeFigure(c Case, pl Plane) Figure {
 		Width:   16 * vg.Centimeter, Height: 15 * vg.Centimeter,
 		draw: func(dc draw.Canvas) {
 			body := drawHeader(dc, "States in the plane · "+c.Label, sub)
-			p := newPlot("component 1 ("+c.units()+")", "component 2 ("+c.units()+")")
+			p := newPlot("x0 ("+c.units()+")", "x1 ("+c.units()+")")
 			addRules(p)
 			var pmax float64
 			for _, v := range pl.Prob {

@@ -3,27 +3,27 @@ package manifests
 import "gridstage/solver"
 
 func init() {
-	registerKind(kindInfo{name: "sv", keys: []string{"rho", "mean", "log_variance"}, new: func() kindSpec { return &svSpec{} }})
+	registerKind(kindInfo{name: "ar1-volatility", keys: []string{"rho", "mean", "log_variance"}, new: func() kindSpec { return &volatilitySpec{} }})
 }
 
 // defaultVolStates is the number of log-variance states when log_variance
 // gives none: volatility regimes are usually few (common practice).
 const defaultVolStates = 5
 
-// svSpec is a first-order autoregression with stochastic volatility,
+// volatilitySpec is a first-order autoregression with stochastic volatility,
 //
 //	y' = (1 − ρ) μ + ρ y + exp(h/2) ε,   h' = (1 − ρ_h) μ_h + ρ_h h + σ_h z,
 //
 // with rho and mean the level's ρ and μ and log_variance the AR(1) of the
-// log-variance h. states, method, moments, grid and width set the level's
+// log-variance h. states, method, moments, nodes and width set the level's
 // grid; log_variance has its own states and method.
-type svSpec struct {
+type volatilitySpec struct {
 	rho, mean num
 	vol       *volSpec
 	volBad    bool
 }
 
-// volSpec is the log-variance AR(1) of an sv process and how to
+// volSpec is the log-variance AR(1) of an ar1-volatility process and how to
 // discretize it; the other settings are the AR(1) defaults of its method.
 type volSpec struct {
 	at                       loc
@@ -33,7 +33,7 @@ type volSpec struct {
 
 const volWant = "a mapping with rho, sigma and mean of the log-variance AR(1), and optionally states and method"
 
-func (s *svSpec) decode(m *mapping) {
+func (s *volatilitySpec) decode(m *mapping) {
 	s.rho = m.number("rho")
 	s.mean = m.number("mean")
 	n := m.get("log_variance")
@@ -52,7 +52,7 @@ func (s *svSpec) decode(m *mapping) {
 	s.volBad = s.vol.method.bad
 }
 
-func (s *svSpec) clone() kindSpec {
+func (s *volatilitySpec) clone() kindSpec {
 	c := *s
 	if s.vol != nil {
 		v := *s.vol
@@ -61,7 +61,7 @@ func (s *svSpec) clone() kindSpec {
 	return &c
 }
 
-func (s *svSpec) params(add func(string, *num)) {
+func (s *volatilitySpec) params(add func(string, *num)) {
 	add("rho", &s.rho)
 	add("mean", &s.mean)
 	if s.vol != nil {
@@ -72,7 +72,7 @@ func (s *svSpec) params(add func(string, *num)) {
 	}
 }
 
-func (s *svSpec) check(r *reporter, at loc) bool {
+func (s *volatilitySpec) check(r *reporter, at loc) bool {
 	ok := present(r, s.rho, at, "rho", "a number in (-1, 1)") && checkOpen(r, s.rho, -1, 1)
 	if s.mean.set || s.mean.bad {
 		ok = checkFinite(r, s.mean) && ok
@@ -95,14 +95,14 @@ func (s *svSpec) check(r *reporter, at loc) bool {
 	return ok && !s.volBad
 }
 
-var svMethods = []solver.Method{solver.MaxEnt, solver.Tauchen}
+var volatilityMethods = []solver.Method{solver.MaxEnt, solver.Tauchen}
 
-func (s *svSpec) methods() []solver.Method   { return svMethods }
-func (s *svSpec) baselines() []solver.Method { return svMethods }
+func (s *volatilitySpec) methods() []solver.Method   { return volatilityMethods }
+func (s *volatilitySpec) baselines() []solver.Method { return volatilityMethods }
 
 // defaultBaseline compares maxent with Tauchen's interval masses for the
 // level, and Tauchen with maxent.
-func (s *svSpec) defaultBaseline(m solver.Method) (solver.Method, bool) {
+func (s *volatilitySpec) defaultBaseline(m solver.Method) (solver.Method, bool) {
 	if m == solver.Tauchen {
 		return solver.MaxEnt, true
 	}
@@ -110,9 +110,9 @@ func (s *svSpec) defaultBaseline(m solver.Method) (solver.Method, bool) {
 }
 
 // momentLimit: given the joint state the level is exactly normal.
-func (s *svSpec) momentLimit() (int, string) { return 8, "" }
+func (s *volatilitySpec) momentLimit() (int, string) { return 8, "" }
 
-func (s *svSpec) rules(r *reporter, p *processSpec) bool {
+func (s *volatilitySpec) rules(r *reporter, p *processSpec) bool {
 	ny, nh := int(p.states.v), int(s.vol.states.v)
 	if ny*nh > maxTotalStates {
 		r.add(p.states.at, ErrRange, "%s level states times %d log-variance states give %d states: want at most %d in all",
@@ -122,9 +122,11 @@ func (s *svSpec) rules(r *reporter, p *processSpec) bool {
 	return true
 }
 
-func (s *svSpec) chainStates(set solver.Settings) int { return set.States * int(s.vol.states.v) }
+func (s *volatilitySpec) chainStates(set solver.Settings) int {
+	return set.States * int(s.vol.states.v)
+}
 
-func (s *svSpec) volMethod() solver.Method {
+func (s *volatilitySpec) volMethod() solver.Method {
 	if s.vol.method.set {
 		m, _ := solver.ParseMethod(s.vol.method.v)
 		return m
@@ -132,28 +134,28 @@ func (s *svSpec) volMethod() solver.Method {
 	return solver.MaxEnt
 }
 
-func (s *svSpec) canonical(o object) {
+func (s *volatilitySpec) canonical(o object) {
 	o["rho"] = s.rho.v
 	o["mean"] = s.mean.v
 	o["log_variance"] = object{"rho": s.vol.rho.v, "sigma": s.vol.sigma.v, "mean": s.vol.mean.v,
 		"states": s.vol.states.v, "method": s.volMethod().String()}
 }
 
-func (s *svSpec) model() Model {
-	return svModel{
+func (s *volatilitySpec) model() Model {
+	return volatilityModel{
 		SV: solver.SV{Mean: s.mean.v, Rho: s.rho.v,
 			LogVar: solver.AR1{Mean: s.vol.mean.v, Rho: s.vol.rho.v, Sigma: s.vol.sigma.v}},
 		Vol: solver.Settings{States: int(s.vol.states.v), Method: s.volMethod()},
 	}
 }
 
-// svModel discretizes the level with the job's settings and the
+// volatilityModel discretizes the level with the job's settings and the
 // log-variance with Vol (its method's AR(1) defaults otherwise).
-type svModel struct {
+type volatilityModel struct {
 	solver.SV
 	Vol solver.Settings
 }
 
-func (m svModel) Discretize(level solver.Settings) (*solver.Chain, error) {
+func (m volatilityModel) Discretize(level solver.Settings) (*solver.Chain, error) {
 	return m.SV.Discretize(level, m.Vol)
 }
