@@ -137,7 +137,7 @@ func WriteRecord(dir string, r *RunRecord) error {
 // writeRecord writes r's head and files, with the jobs list's elements
 // supplied by jobs (n of them).
 func writeRecord(dir string, r *RunRecord, jobs func(*bufio.Writer) error, n int) error {
-	return atomicfile.Write(filepath.Join(dir, RecordFile), 0o644, func(w io.Writer) error {
+	return atomicfile.Write(filepath.Join(dir, RecordFile), 0o666, func(w io.Writer) error {
 		head, err := json.MarshalIndent(recordHead{r.Run, r.Manifest, r.ManifestHash, r.Tool, r.Numeric, r.Shard, r.Succeeded}, "", "  ")
 		if err != nil {
 			return err

@@ -4,6 +4,8 @@ import (
 	"fmt"
 	"os"
 	"path/filepath"
+
+	"gridstage/internal/atomicfile"
 )
 
 // tempFile is a file written under a hidden temporary name in the folder of
@@ -30,7 +32,7 @@ func createTemp(final string) (*tempFile, error) {
 // finish makes the file readable by others, flushes it to stable storage
 // and closes it; it is still under its temporary name.
 func (t *tempFile) finish() error {
-	if err := t.Chmod(0o644); err != nil {
+	if err := t.Chmod(atomicfile.Mode(0o666)); err != nil {
 		t.Close()
 		return fmt.Errorf("formats: %s: %w", t.final, err)
 	}

@@ -46,6 +46,10 @@ type Record struct {
 	// must be the same for every age of a point.
 	SpecHash string
 	Spec     []byte
+	// ChainHash is set by the Reader: the point's chain hash from the
+	// points table, which the Reader checks against the numbers once it has
+	// read the point's last age. The Writer computes its own and ignores it.
+	ChainHash string
 	// Chain is the chain; its Grid has Header.Dim values per state. For the
 	// last age of a life-cycle point, whose grid no transition leaves
 	// (solver.AgeChain.Final), Transition is nil, Matched holds zeros and

@@ -159,7 +159,7 @@ func (r *Reader) next() (Record, error) {
 		}
 	}
 	p := r.point
-	rec := Record{Point: p.point, Params: r.params, SpecHash: p.specHash, Spec: p.spec}
+	rec := Record{Point: p.point, Params: r.params, SpecHash: p.specHash, Spec: p.spec, ChainHash: p.chainHash}
 	if err := r.readAge(&rec); err != nil {
 		return Record{}, err
 	}

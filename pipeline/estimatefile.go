@@ -18,6 +18,7 @@ type estimateFile struct {
 	StageVersion string               `json:"stage_version"`
 	Model        string               `json:"model"`
 	Params       map[string]float64   `json:"params"`
+	Paths        string               `json:"paths"`
 	Chains       []plugin.ChainRef    `json:"chains"`
 	Scalars      map[string]float64   `json:"scalars,omitempty"`
 	Vectors      map[string][]float64 `json:"vectors,omitempty"`
@@ -37,7 +38,7 @@ func writeAtomic(path string, b []byte) error {
 	if err := os.MkdirAll(filepath.Dir(path), 0o755); err != nil {
 		return fmt.Errorf("pipeline: %w", err)
 	}
-	if err := atomicfile.WriteBytes(path, b, 0o644); err != nil {
+	if err := atomicfile.WriteBytes(path, b, 0o666); err != nil {
 		return fmt.Errorf("pipeline: %w", err)
 	}
 	return nil

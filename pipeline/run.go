@@ -86,6 +86,12 @@ func Run(ctx context.Context, s *Spec, opt Options) (*Result, error) {
 	return h.res, nil
 }
 
+// completer is a chain loader that also reads a chain's full reference from
+// its file (plugin.FileLoader).
+type completer interface {
+	Complete(context.Context, plugin.ChainRef) (plugin.ChainRef, error)
+}
+
 type host struct {
 	spec *Spec
 	opt  Options
@@ -163,6 +169,19 @@ func (h *host) discretize(ctx context.Context, manifest []byte) error {
 			if _, err := h.opt.Loader.Load(ctx, ref); err != nil {
 				return fmt.Errorf("stage %s returned chain %s (%s point %d) that does not verify: %w", st.Name, ref.ChainHash, ref.Process, ref.Point, err)
 			}
+		}
+		// The numeric version comes from the chain's file, which the
+		// loader has verified; the spec hash the stage returned must be
+		// the file's.
+		if c, ok := h.opt.Loader.(completer); ok {
+			full, err := c.Complete(ctx, ref)
+			if err != nil {
+				return fmt.Errorf("stage %s returned chain %s (%s point %d) that does not verify: %w", st.Name, ref.ChainHash, ref.Process, ref.Point, err)
+			}
+			if full.SpecHash != ref.SpecHash {
+				return fmt.Errorf("stage %s returned chain %s (%s point %d) with spec hash %s; its file says %s", st.Name, ref.ChainHash, ref.Process, ref.Point, ref.SpecHash, full.SpecHash)
+			}
+			disc.Chains[i].Numeric = full.Numeric
 		}
 	}
 	h.res.Chains = disc.Chains
@@ -315,8 +334,6 @@ func check(stage, model string, refs []plugin.ChainRef, ests []plugin.Estimate) 
 
 // write stores one estimate and returns its ledger records.
 func (h *host) write(d plugin.Description, es EstimateSpec, refs []plugin.ChainRef, e plugin.Estimate) (Written, []lineage.Record, error) {
-	id := lineage.EstimateID(d.Name, d.Version, es.Model, es.Params, e.ChainHashes, lineage.Values{Scalars: e.Scalars, Vectors: e.Vectors})
-	path := filepath.Join(h.spec.Out, "estimates", id+".json")
 	byHash := map[string]plugin.ChainRef{}
 	for _, r := range refs {
 		if _, ok := byHash[r.ChainHash]; !ok {
@@ -327,20 +344,8 @@ func (h *host) write(d plugin.Description, es EstimateSpec, refs []plugin.ChainR
 	for _, c := range e.ChainHashes {
 		used = append(used, byHash[c])
 	}
-	if err := writeEstimate(path, estimateFile{
-		ID: id, Pipeline: h.spec.Name, Stage: d.Name, StageVersion: d.Version, Model: es.Model,
-		Params: es.Params, Chains: used, Scalars: e.Scalars, Vectors: e.Vectors,
-	}); err != nil {
-		return Written{}, nil, err
-	}
-	now := h.opt.Now().UTC()
-	var recs []lineage.Record
-	for _, r := range used {
-		recs = append(recs, lineage.Record{
-			EstimateID: id, EstimatePath: path, Pipeline: h.spec.Name, Stage: d.Name, StageVersion: d.Version,
-			Model: es.Model, ChainHash: r.ChainHash, SpecHash: r.SpecHash, ManifestHash: r.ManifestHash,
-			ChainPath: r.Path, FileHash: r.FileHash, Process: r.Process, Point: r.Point, Time: now,
-		})
-	}
-	return Written{ID: id, Path: path, Stage: d.Name, StageVersion: d.Version, Model: es.Model, ChainHashes: e.ChainHashes, Scalars: e.Scalars}, recs, nil
+	return recordEntry(h.spec.Ledger, filepath.Join(h.spec.Out, "estimates"), Entry{
+		Pipeline: h.spec.Name, Stage: d.Name, StageVersion: d.Version, Model: es.Model, Params: es.Params,
+		Chains: used, Scalars: e.Scalars, Vectors: e.Vectors,
+	}, h.opt.Now())
 }

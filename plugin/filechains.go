@@ -26,6 +26,7 @@ var _ ChainLoader = (*FileLoader)(nil)
 
 type loadedSet struct {
 	fileHash string
+	header   formats.Header
 	points   map[int][]formats.Record
 }
 
@@ -77,6 +78,7 @@ func (l *FileLoader) set(path string) (*loadedSet, error) {
 		return nil, fmt.Errorf("%w: %v", ErrChainMismatch, err)
 	}
 	defer r.Close()
+	s.header = r.Header
 	for {
 		rec, err := r.Next()
 		if errors.Is(err, io.EOF) {
@@ -92,6 +94,39 @@ func (l *FileLoader) set(path string) (*loadedSet, error) {
 	}
 	l.sets[path] = s
 	return s, nil
+}
+
+// Complete verifies the chain ref names (its file, and its chain hash
+// recomputed from the numbers; any life-cycle chain too) and returns the
+// reference as the file describes it: process, spec hash, manifest hash,
+// the file's content hash and the numeric version the chain was solved
+// under. Path, Point and ChainHash are kept; FileHash, when set, must
+// match.
+func (l *FileLoader) Complete(ctx context.Context, ref ChainRef) (ChainRef, error) {
+	if err := ctx.Err(); err != nil {
+		return ref, err
+	}
+	set, err := l.set(ref.Path)
+	if err != nil {
+		return ref, err
+	}
+	if ref.FileHash != "" && set.fileHash != ref.FileHash {
+		return ref, MismatchHash("content hash", ref.Path, ref.FileHash, set.fileHash)
+	}
+	recs, ok := set.points[ref.Point]
+	if !ok {
+		return ref, fmt.Errorf("%w: %s has no sweep point %d", ErrChainMismatch, ref.Path, ref.Point)
+	}
+	if got := formats.ChainHash(recs); got != ref.ChainHash {
+		return ref, MismatchHash(fmt.Sprintf("chain hash of point %d", ref.Point), ref.Path, ref.ChainHash, got)
+	}
+	out := ref
+	out.Process, out.SpecHash, out.ManifestHash = set.header.Process, recs[0].SpecHash, set.header.ManifestHash
+	out.FileHash, out.Numeric = set.fileHash, set.header.Numeric
+	if len(recs[0].Params) > 0 {
+		out.Params = recs[0].Params
+	}
+	return out, nil
 }
 
 // DataHash returns the chain hash (docs/HASHES.md) of a time-invariant

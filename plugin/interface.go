@@ -92,6 +92,10 @@ type ChainRef struct {
 	ManifestHash string             `json:"manifest_hash,omitempty"` // empty for a lone job spec
 	FileHash     string             `json:"file_hash"`               // content hash of the file at Path
 	Params       map[string]float64 `json:"params,omitempty"`
+	// Numeric is the numeric version the chain was solved under, as its
+	// file records it; filled by the host from the file (the stage
+	// protocol does not carry it).
+	Numeric string `json:"numeric_version,omitempty"`
 }
 
 // ChainData holds a time-invariant chain's numbers.

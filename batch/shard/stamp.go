@@ -44,7 +44,7 @@ func WriteStamp(dir string, s Shard, manifestHash string, jobs int) error {
 		return err
 	}
 	b = append(b, '\n')
-	if err := atomicfile.WriteBytes(filepath.Join(dir, StampFile), b, 0o644); err != nil {
+	if err := atomicfile.WriteBytes(filepath.Join(dir, StampFile), b, 0o666); err != nil {
 		return fmt.Errorf("shard: %w", err)
 	}
 	return nil

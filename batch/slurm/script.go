@@ -200,7 +200,7 @@ func Write(p Plan) ([]string, error) {
 }
 
 func writeFile(path string, data []byte) error {
-	if err := atomicfile.WriteBytes(path, data, 0o755); err != nil {
+	if err := atomicfile.WriteBytes(path, data, 0o777); err != nil {
 		return fmt.Errorf("slurm: %w", err)
 	}
 	return nil

@@ -228,6 +228,9 @@ type inspectJSON struct {
 	Params     map[string]float64  `json:"params"`
 	Age        int                 `json:"age"`
 	SpecHash   string              `json:"spec_hash"`
+	ChainHash  string              `json:"chain_hash"`
+	Numeric    string              `json:"numeric_version"`
+	Tool       string              `json:"tool_version"`
 	Spec       json.RawMessage     `json:"spec,omitempty"`
 	Method     string              `json:"method"`
 	Moments    int                 `json:"moments"`
@@ -252,7 +255,8 @@ func showRecord(w io.Writer, r *formats.Reader, rec *formats.Record, next *forma
 	lifeCycle := next != nil || rec.Age > 0
 	if asJSON {
 		j := inspectJSON{Run: r.Header.Run, Process: r.Header.Process, Kind: r.Header.Kind, Point: rec.Point,
-			Params: rec.Params, Age: rec.Age, SpecHash: rec.SpecHash, Method: c.Method.String(), Moments: c.Moments,
+			Params: rec.Params, Age: rec.Age, SpecHash: rec.SpecHash, ChainHash: rec.ChainHash,
+			Numeric: r.Header.Numeric, Tool: r.Header.Tool, Method: c.Method.String(), Moments: c.Moments,
 			Grid: gridRows(c), Transition: [][]float64{}, Initial: rec.Initial, Matched: c.Matched, Baseline: rec.Baseline,
 			Vector: rec.Vector, BaselineVector: rec.BaselineVector}
 		if next != nil {

@@ -6,7 +6,9 @@ import (
 	"errors"
 	"fmt"
 	"io"
+	"io/fs"
 	"os"
+	"path/filepath"
 
 	"github.com/spf13/cobra"
 
@@ -19,6 +21,7 @@ func init() { extraCommands = append(extraCommands, newLineageCmd) }
 func newLineageCmd() *cobra.Command {
 	var (
 		estimate, chain  string
+		root             string
 		noVerify, asJSON bool
 	)
 	cmd := &cobra.Command{
@@ -32,9 +35,15 @@ func newLineageCmd() *cobra.Command {
 
 IDs and hashes may be abbreviated to any unique prefix of 6 or more hex
 digits. Unless --no-verify is given, every chain file the answer names is
-re-verified (its content hash and the chain's hash recomputed from the
-numbers) and every estimate file is checked against its content-derived id;
-the command exits with status 1 if any check fails.`,
+re-verified (its content hash, the chain's hash recomputed from the numbers,
+its spec hash and numeric version against the ledger's) and every estimate
+file is checked against its content-derived id; the command exits with
+status 1 if any check fails.
+
+The ledger names files relative to its own folder, so a folder copied or
+moved whole verifies in place; --root resolves them beneath another folder
+(a ledger kept apart from its outputs). A file missing from its recorded
+place is looked for beneath the root by name and content hash.`,
 		Args: cobra.ExactArgs(1),
 		RunE: func(cmd *cobra.Command, args []string) error {
 			if estimate != "" && chain != "" {
@@ -56,9 +65,14 @@ the command exits with status 1 if any check fails.`,
 			if err != nil {
 				return badInput("%s: %v", args[0], err)
 			}
+			if root == "" {
+				root = filepath.Dir(args[0])
+			} else if fi, err := os.Stat(root); err != nil || !fi.IsDir() {
+				return badInput("--root %s is not a folder", root)
+			}
 			var checks []check
 			if !noVerify {
-				checks = verifyRecords(cmd.Context(), recs)
+				checks = verifyRecords(cmd.Context(), recs, root)
 			}
 			if asJSON {
 				enc := json.NewEncoder(cmd.OutOrStdout())
@@ -84,6 +98,7 @@ the command exits with status 1 if any check fails.`,
 	fs.StringVar(&estimate, "estimate", "", "estimate id (or a unique prefix): which chains fed it")
 	fs.StringVar(&chain, "chain", "", "chain hash (or a unique prefix): which estimates used it")
 	fs.BoolVar(&noVerify, "no-verify", false, "do not re-verify the files the answer names")
+	fs.StringVar(&root, "root", "", "folder the ledger's relative paths start from (default: the ledger's folder)")
 	fs.BoolVar(&asJSON, "json", false, "print one JSON object")
 	cmd.SetContext(context.Background())
 	return cmd
@@ -99,8 +114,9 @@ type check struct {
 	Problem string `json:"problem,omitempty"`
 }
 
-// verifyRecords re-verifies each distinct chain and estimate file once.
-func verifyRecords(ctx context.Context, recs []lineage.Record) []check {
+// verifyRecords re-verifies each distinct chain and estimate file once,
+// resolving the ledger's paths beneath root.
+func verifyRecords(ctx context.Context, recs []lineage.Record, root string) []check {
 	loader := &plugin.FileLoader{}
 	var out []check
 	seen := map[string]bool{}
@@ -108,23 +124,69 @@ func verifyRecords(ctx context.Context, recs []lineage.Record) []check {
 		key := fmt.Sprintf("chain %s %d %s", r.ChainPath, r.Point, r.ChainHash)
 		if !seen[key] {
 			seen[key] = true
-			c := check{Kind: "chain", Path: r.ChainPath, Point: r.Point, Hash: r.ChainHash, OK: true}
-			ref := plugin.ChainRef{Path: r.ChainPath, Point: r.Point, ChainHash: r.ChainHash, FileHash: r.FileHash}
-			if _, err := loader.Load(ctx, ref); err != nil {
+			path := lineage.Resolve(root, r.ChainPath)
+			c := check{Kind: "chain", Path: path, Point: r.Point, Hash: r.ChainHash, OK: true}
+			ref := plugin.ChainRef{Path: path, Point: r.Point, ChainHash: r.ChainHash, FileHash: r.FileHash}
+			if _, err := os.Stat(path); err != nil {
+				if found := findChain(ctx, loader, root, r); found != "" {
+					ref.Path, c.Path = found, found
+				}
+			}
+			if full, err := loader.Complete(ctx, ref); err != nil {
 				c.OK, c.Problem = false, err.Error()
+			} else if full.SpecHash != r.SpecHash {
+				c.OK, c.Problem = false, fmt.Sprintf("point %d has spec hash %s, the ledger says %s", r.Point, full.SpecHash, r.SpecHash)
+			} else if r.Numeric != "" && full.Numeric != r.Numeric {
+				c.OK, c.Problem = false, fmt.Sprintf("the file was solved under numeric version %s, the ledger says %s", full.Numeric, r.Numeric)
 			}
 			out = append(out, c)
 		}
 		if key := "estimate " + r.EstimateID; !seen[key] {
 			seen[key] = true
-			c := check{Kind: "estimate", Path: r.EstimatePath, Hash: r.EstimateID, OK: true}
-			if err := verifyEstimateFile(r.EstimatePath, r.EstimateID); err != nil {
+			path := lineage.Resolve(root, r.EstimatePath)
+			if _, err := os.Stat(path); err != nil {
+				if found := findFile(root, r.EstimateID+".json"); found != "" {
+					path = found
+				}
+			}
+			c := check{Kind: "estimate", Path: path, Hash: r.EstimateID, OK: true}
+			if err := verifyEstimateFile(path, r.EstimateID); err != nil {
 				c.OK, c.Problem = false, err.Error()
 			}
 			out = append(out, c)
 		}
 	}
 	return out
+}
+
+// findChain looks beneath root for the points file of a ledger row whose
+// recorded path is gone: a file of the same name whose content hash is the
+// row's. It returns "" when there is none.
+func findChain(ctx context.Context, loader *plugin.FileLoader, root string, r lineage.Record) string {
+	base := filepath.Base(filepath.FromSlash(r.ChainPath))
+	found := ""
+	filepath.WalkDir(root, func(p string, d fs.DirEntry, err error) error {
+		if err != nil || found != "" || d.IsDir() || d.Name() != base {
+			return nil
+		}
+		if _, err := loader.Complete(ctx, plugin.ChainRef{Path: p, Point: r.Point, ChainHash: r.ChainHash, FileHash: r.FileHash}); err == nil {
+			found = p
+		}
+		return nil
+	})
+	return found
+}
+
+// findFile returns the first file named name beneath root, or "".
+func findFile(root, name string) string {
+	found := ""
+	filepath.WalkDir(root, func(p string, d fs.DirEntry, err error) error {
+		if err == nil && found == "" && !d.IsDir() && d.Name() == name {
+			found = p
+		}
+		return nil
+	})
+	return found
 }
 
 // verifyEstimateFile recomputes an estimate's id from its file.
@@ -164,10 +226,10 @@ func printLineage(w io.Writer, recs []lineage.Record, checks []check, byEstimate
 		if !c.OK {
 			s = "FAILED: " + c.Problem
 		}
-		status[c.Kind+" "+c.Hash+" "+c.Path] = s
+		status[c.Kind+" "+c.Hash] = s
 	}
 	note := func(kind, hash, path string) string {
-		if s, ok := status[kind+" "+hash+" "+path]; ok {
+		if s, ok := status[kind+" "+hash]; ok {
 			return " [" + s + "]"
 		}
 		return ""
@@ -179,13 +241,13 @@ func printLineage(w io.Writer, recs []lineage.Record, checks []check, byEstimate
 			r.Pipeline, r.Time.Format("2006-01-02 15:04:05Z"), r.EstimatePath, note("estimate", r.EstimateID, r.EstimatePath))
 		fmt.Fprintln(w, "fed by:")
 		for _, r := range recs {
-			fmt.Fprintf(w, "  chain %s\n    process %s point %d, spec %s, manifest %s\n    file %s%s\n", r.ChainHash, r.Process, r.Point,
-				r.SpecHash, r.ManifestHash, r.ChainPath, note("chain", r.ChainHash, r.ChainPath))
+			fmt.Fprintf(w, "  chain %s\n    process %s point %d, spec %s, numeric version %s, manifest %s\n    file %s%s\n", r.ChainHash, r.Process, r.Point,
+				r.SpecHash, orUnrecorded(r.Numeric), r.ManifestHash, r.ChainPath, note("chain", r.ChainHash, r.ChainPath))
 		}
 	case byChain:
 		r := recs[0]
-		fmt.Fprintf(w, "chain %s\n  process %s point %d, spec %s, manifest %s\n  file %s%s\n", r.ChainHash, r.Process, r.Point,
-			r.SpecHash, r.ManifestHash, r.ChainPath, note("chain", r.ChainHash, r.ChainPath))
+		fmt.Fprintf(w, "chain %s\n  process %s point %d, spec %s, numeric version %s, manifest %s\n  file %s%s\n", r.ChainHash, r.Process, r.Point,
+			r.SpecHash, orUnrecorded(r.Numeric), r.ManifestHash, r.ChainPath, note("chain", r.ChainHash, r.ChainPath))
 		fmt.Fprintln(w, "used by:")
 		for _, r := range recs {
 			fmt.Fprintf(w, "  estimate %s  %s %s / %s, recorded %s%s\n", abbrev(r.EstimateID), r.Stage, r.StageVersion, r.Model,
@@ -198,4 +260,11 @@ func printLineage(w io.Writer, recs []lineage.Record, checks []check, byEstimate
 				abbrev(r.ChainHash), r.Process, r.Point, r.Time.Format("2006-01-02 15:04:05Z"), note("chain", r.ChainHash, r.ChainPath))
 		}
 	}
+}
+
+func orUnrecorded(v string) string {
+	if v == "" {
+		return "(not recorded)"
+	}
+	return v
 }

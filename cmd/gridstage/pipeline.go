@@ -8,6 +8,7 @@ import (
 	"io"
 	"os"
 	"os/signal"
+	"path/filepath"
 	"sort"
 	"strings"
 	"syscall"
@@ -89,7 +90,20 @@ func printPipeline(w io.Writer, s *pipeline.Spec, res *pipeline.Result) {
 		fmt.Fprintf(w, "  %s  %s %s / %s on chain %s: %s\n", abbrev(e.ID), e.Stage, e.StageVersion, e.Model,
 			abbrev(strings.Join(e.ChainHashes, ",")), scalars(e.Scalars))
 	}
-	fmt.Fprintf(w, "estimates written to %s/estimates; lineage appended to %s\n", s.Out, res.Ledger)
+	fmt.Fprintf(w, "estimates written to %s; lineage appended to %s\n", shown(filepath.Join(s.Out, "estimates")), shown(res.Ledger))
+}
+
+// shown gives a path relative to the working folder when it lies beneath
+// it, so that what a run prints does not depend on where the checkout is.
+func shown(path string) string {
+	wd, err := os.Getwd()
+	if err != nil {
+		return path
+	}
+	if rel, err := filepath.Rel(wd, path); err == nil && !strings.HasPrefix(rel, "..") {
+		return filepath.ToSlash(rel)
+	}
+	return path
 }
 
 // abbrev shortens a hash for display; queries accept any unique prefix.

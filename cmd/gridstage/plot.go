@@ -185,5 +185,5 @@ func safeName(s string) string {
 // writeAtomic writes data to path so a crash never leaves a file that
 // looks complete.
 func writeAtomic(path string, data []byte) error {
-	return atomicfile.WriteBytes(path, data, 0o644)
+	return atomicfile.WriteBytes(path, data, 0o666)
 }

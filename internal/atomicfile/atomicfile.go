@@ -12,7 +12,9 @@ import (
 )
 
 // Write creates or replaces path with what fill writes, with permissions
-// perm. On any error the temporary file is removed and path is untouched.
+// perm less the process umask, as os.Create would give (pass 0o666 for a
+// data file that follows the umask). On any error the temporary file is
+// removed and path is untouched.
 func Write(path string, perm os.FileMode, fill func(w io.Writer) error) (err error) {
 	dir, base := filepath.Split(path)
 	if dir == "" {
@@ -32,7 +34,7 @@ func Write(path string, perm os.FileMode, fill func(w io.Writer) error) (err err
 	if err = fill(tmp); err != nil {
 		return err
 	}
-	if err = tmp.Chmod(perm); err != nil {
+	if err = tmp.Chmod(Mode(perm)); err != nil {
 		return err
 	}
 	if err = tmp.Sync(); err != nil {
@@ -58,3 +60,7 @@ func WriteBytes(path string, data []byte, perm os.FileMode) error {
 		return err
 	})
 }
+
+// Mode returns perm less the process umask: the permissions a new file
+// created with perm gets.
+func Mode(perm os.FileMode) os.FileMode { return perm &^ os.FileMode(umask) }

@@ -16,10 +16,15 @@ import (
 	"github.com/apache/arrow-go/v18/parquet/compress"
 	"github.com/apache/arrow-go/v18/parquet/file"
 	"github.com/apache/arrow-go/v18/parquet/pqarrow"
+
+	"gridstage/internal/atomicfile"
 )
 
 // LedgerVersion is the layout version stored in the ledger's metadata.
-const LedgerVersion = "1"
+// Version 2 added the numeric_version column and writes the chain and
+// estimate paths relative to the ledger's folder; version 1 ledgers (with
+// absolute paths) are still read, and rewritten as version 2 on append.
+const LedgerVersion = "2"
 
 const (
 	metaKind    = "gridstage.kind"
@@ -44,7 +49,12 @@ var columns = []arrow.Field{
 	{Name: "process", Type: arrow.BinaryTypes.String},
 	{Name: "point", Type: arrow.PrimitiveTypes.Int32},
 	{Name: "time", Type: &arrow.TimestampType{Unit: arrow.Microsecond, TimeZone: "UTC"}},
+	{Name: "numeric_version", Type: arrow.BinaryTypes.String},
 }
+
+// columnsV1 is the layout of version 1: the same columns without
+// numeric_version.
+var columnsV1 = columns[:14]
 
 func schema() *arrow.Schema {
 	md := arrow.NewMetadata([]string{metaKind, metaVersion}, []string{kindLedger, LedgerVersion})
@@ -82,8 +92,13 @@ func read(f parquet.ReaderAtSeeker, path string) (recs []Record, err error) {
 	if kv.FindValue(metaKind) == nil || *kv.FindValue(metaKind) != kindLedger {
 		return nil, fmt.Errorf("lineage: %s is not a lineage ledger (metadata %s is not %q)", path, metaKind, kindLedger)
 	}
-	if v := kv.FindValue(metaVersion); v == nil || *v != LedgerVersion {
-		return nil, fmt.Errorf("lineage: %s has an unsupported ledger version (want %s)", path, LedgerVersion)
+	want := columns
+	switch v := kv.FindValue(metaVersion); {
+	case v != nil && *v == LedgerVersion:
+	case v != nil && *v == "1":
+		want = columnsV1
+	default:
+		return nil, fmt.Errorf("lineage: %s has an unsupported ledger version (this gridstage reads 1 and %s)", path, LedgerVersion)
 	}
 	fr, err := pqarrow.NewFileReader(pf, pqarrow.ArrowReadProperties{}, memory.DefaultAllocator)
 	if err != nil {
@@ -94,10 +109,10 @@ func read(f parquet.ReaderAtSeeker, path string) (recs []Record, err error) {
 		return nil, fmt.Errorf("lineage: %s: %w", path, err)
 	}
 	defer tbl.Release()
-	if int(tbl.NumCols()) != len(columns) {
-		return nil, fmt.Errorf("lineage: %s has %d columns, want %d", path, tbl.NumCols(), len(columns))
+	if int(tbl.NumCols()) != len(want) {
+		return nil, fmt.Errorf("lineage: %s has %d columns, want %d", path, tbl.NumCols(), len(want))
 	}
-	for i, c := range columns {
+	for i, c := range want {
 		if got := tbl.Schema().Field(i); got.Name != c.Name || !arrow.TypeEqual(got.Type, c.Type) {
 			return nil, fmt.Errorf("lineage: %s column %d is %s %s, want %s %s", path, i, got.Name, got.Type, c.Name, c.Type)
 		}
@@ -116,6 +131,9 @@ func read(f parquet.ReaderAtSeeker, path string) (recs []Record, err error) {
 			}
 			r.Point = int(rec.Column(12).(*array.Int32).Value(row))
 			r.Time = rec.Column(13).(*array.Timestamp).Value(row).ToTime(arrow.Microsecond).UTC()
+			if len(want) > 14 {
+				r.Numeric = rec.Column(14).(*array.String).Value(row)
+			}
 			recs = append(recs, r)
 		}
 	}
@@ -126,17 +144,19 @@ func read(f parquet.ReaderAtSeeker, path string) (recs []Record, err error) {
 }
 
 // Append adds recs to the ledger at path, creating it (and its folder) if
-// needed. It holds an exclusive lock on path+".lock" while it reads the old
-// rows, writes old and new rows to a temporary file in the same folder,
-// fsyncs it, renames it over path and fsyncs the folder. On any error the
-// old ledger is untouched and the temporary file removed.
+// needed. It holds an exclusive lock on the ledger's folder (no lock file
+// is created) while it reads the old rows and writes old and new rows
+// through internal/atomicfile: temporary file in the same folder, fsync,
+// rename, folder fsync. The ledger's permissions follow the umask, as
+// every other output's do. On any error the old ledger is untouched.
 func Append(path string, recs []Record) error {
-	if err := os.MkdirAll(filepath.Dir(path), 0o755); err != nil {
+	dir := filepath.Dir(path)
+	if err := os.MkdirAll(dir, 0o777); err != nil {
 		return fmt.Errorf("lineage: %w", err)
 	}
-	unlock, err := lock(path + ".lock")
+	unlock, err := lockDir(dir)
 	if err != nil {
-		return fmt.Errorf("lineage: lock %s: %w", path, err)
+		return fmt.Errorf("lineage: lock the folder of %s: %w", path, err)
 	}
 	defer unlock()
 	old, err := Read(path)
@@ -144,31 +164,10 @@ func Append(path string, recs []Record) error {
 		return err
 	}
 	all := append(old, recs...)
-	tmp, err := os.CreateTemp(filepath.Dir(path), "."+filepath.Base(path)+".tmp-*")
-	if err != nil {
+	if err := atomicfile.Write(path, 0o666, func(w io.Writer) error { return write(w, all) }); err != nil {
 		return fmt.Errorf("lineage: %w", err)
 	}
-	committed := false
-	defer func() {
-		if !committed {
-			tmp.Close()
-			os.Remove(tmp.Name())
-		}
-	}()
-	if err := write(tmp, all); err != nil {
-		return fmt.Errorf("lineage: write %s: %w", path, err)
-	}
-	if err := tmp.Sync(); err != nil {
-		return fmt.Errorf("lineage: sync %s: %w", path, err)
-	}
-	if err := tmp.Close(); err != nil {
-		return fmt.Errorf("lineage: close %s: %w", path, err)
-	}
-	if err := os.Rename(tmp.Name(), path); err != nil {
-		return fmt.Errorf("lineage: %w", err)
-	}
-	committed = true
-	return syncDir(filepath.Dir(path))
+	return nil
 }
 
 // write encodes recs as one Parquet file.
@@ -187,6 +186,7 @@ func write(w io.Writer, recs []Record) error {
 			return err
 		}
 		b.Field(13).(*array.TimestampBuilder).Append(ts)
+		b.Field(14).(*array.StringBuilder).Append(r.Numeric)
 	}
 	rec := b.NewRecordBatch()
 	defer rec.Release()

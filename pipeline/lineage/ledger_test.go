@@ -143,9 +143,9 @@ func TestAppendSurvivesKill(t *testing.T) {
 			t.Fatalf("round %d: %d rows, not a multiple of %d: a partial append survived", round, len(recs), batch)
 		}
 	}
-	// The lock file may remain; temporary files from killed appends may too
-	// (they are never mistaken for the ledger, which is only ever renamed
-	// into place whole).
+	// No lock file is made (appends lock the folder). Temporary files from
+	// killed appends may remain; they are never mistaken for the ledger,
+	// which is only ever renamed into place whole.
 }
 
 const batch = 50

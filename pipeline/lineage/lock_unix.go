@@ -7,10 +7,11 @@ import (
 	"syscall"
 )
 
-// lock takes an exclusive advisory lock on the file at path (created if
-// needed) and returns the function that releases it.
-func lock(path string) (func(), error) {
-	f, err := os.OpenFile(path, os.O_CREATE|os.O_RDWR, 0o644)
+// lockDir takes an exclusive advisory lock on the folder dir itself, so
+// that no lock file is left behind, and returns the function that releases
+// it.
+func lockDir(dir string) (func(), error) {
+	f, err := os.Open(dir)
 	if err != nil {
 		return nil, err
 	}
@@ -22,14 +23,4 @@ func lock(path string) (func(), error) {
 		_ = syscall.Flock(int(f.Fd()), syscall.LOCK_UN)
 		f.Close()
 	}, nil
-}
-
-// syncDir fsyncs a folder so that a rename in it is durable.
-func syncDir(dir string) error {
-	d, err := os.Open(dir)
-	if err != nil {
-		return err
-	}
-	defer d.Close()
-	return d.Sync()
 }

@@ -11,20 +11,21 @@ import (
 
 // Record is one row of the ledger: one chain used by one estimate.
 type Record struct {
-	EstimateID   string    `json:"estimate_id"`   // content-derived id of the estimate (see EstimateID)
-	EstimatePath string    `json:"estimate_path"` // where the estimate's values were written
-	Pipeline     string    `json:"pipeline"`      // name of the pipeline that ran it
-	Stage        string    `json:"stage"`         // stage name from its Description
-	StageVersion string    `json:"stage_version"` // stage version from its Description
-	Model        string    `json:"model"`         // model the stage solved
-	ChainHash    string    `json:"chain_hash"`    // hash of the chain's numbers
-	SpecHash     string    `json:"spec_hash"`     // spec hash of the job that made the chain
-	ManifestHash string    `json:"manifest_hash"` // hash of the manifest the run came from
-	ChainPath    string    `json:"chain_path"`    // points file of the set holding the chain
-	FileHash     string    `json:"file_hash"`     // content hash of ChainPath when the estimate was made
-	Process      string    `json:"process"`       // process name within the set
-	Point        int       `json:"point"`         // sweep point within the set
-	Time         time.Time `json:"time"`          // when the estimate was recorded (UTC, microseconds)
+	EstimateID   string    `json:"estimate_id"`     // content-derived id of the estimate (see EstimateID)
+	EstimatePath string    `json:"estimate_path"`   // the estimate's file, relative to the ledger's folder (RelPath)
+	Pipeline     string    `json:"pipeline"`        // name of the pipeline that ran it
+	Stage        string    `json:"stage"`           // stage name from its Description
+	StageVersion string    `json:"stage_version"`   // stage version from its Description
+	Model        string    `json:"model"`           // model the stage solved
+	ChainHash    string    `json:"chain_hash"`      // hash of the chain's numbers
+	SpecHash     string    `json:"spec_hash"`       // spec hash of the job that made the chain
+	ManifestHash string    `json:"manifest_hash"`   // hash of the manifest the run came from
+	ChainPath    string    `json:"chain_path"`      // points file holding the chain, relative to the ledger's folder
+	FileHash     string    `json:"file_hash"`       // content hash of ChainPath when the estimate was made
+	Process      string    `json:"process"`         // process name within the set
+	Point        int       `json:"point"`           // sweep point within the set
+	Time         time.Time `json:"time"`            // when the estimate was recorded (UTC, microseconds)
+	Numeric      string    `json:"numeric_version"` // numeric version the chain was solved under ("" in version 1 ledgers)
 }
 
 // Values is the content of an estimate that enters its id.
