@@ -118,7 +118,8 @@ func TestRunRecordsLineage(t *testing.T) {
 			t.Errorf("record %+v", r)
 		}
 		var f estimateFile
-		b, err := os.ReadFile(r.EstimatePath)
+		// Ledger paths are relative to the ledger's folder.
+		b, err := os.ReadFile(lineage.Resolve(filepath.Dir(s.Ledger), r.EstimatePath))
 		if err != nil {
 			t.Fatal(err)
 		}
