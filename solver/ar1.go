@@ -104,6 +104,8 @@ func checkStates(n int) error {
 
 // Discretize builds a Markov chain for the process with the chosen method.
 // Baselines ignore Nodes and use their own grids; MaxEnt uses Nodes and Width.
+// AddaCooper needs a normal innovation (Shock nil) and returns
+// ErrNeedsNormal otherwise.
 func (p AR1) Discretize(s Settings) (*Chain, error) {
 	if err := p.Validate(); err != nil {
 		return nil, err
@@ -168,6 +170,12 @@ func (p AR1) Discretize(s Settings) (*Chain, error) {
 		for i := range c.Matched {
 			c.Matched[i] = 2
 		}
+	case AddaCooper:
+		if p.Shock != nil {
+			return nil, ErrNeedsNormal
+		}
+		c.Grid = addaCooperGrid(n, p.Mean, sdY)
+		addaCooperMatrix(n, p.Rho, c.Transition)
 	default:
 		return nil, badParam("method", float64(s.Method), "a known method")
 	}

@@ -10,7 +10,7 @@ import (
 // fixed set of moments, so they are run at moments=0 only.
 func BenchmarkAR1(b *testing.B) {
 	p := AR1{Rho: 0.9, Sigma: 0.1}
-	for _, m := range []Method{MaxEnt, Tauchen, TauchenHussey, Rouwenhorst} {
+	for _, m := range []Method{MaxEnt, Tauchen, TauchenHussey, Rouwenhorst, AddaCooper} {
 		for _, n := range []int{9, 21, 51} {
 			moments := []int{2, 4}
 			if m != MaxEnt {

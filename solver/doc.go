@@ -32,8 +32,9 @@
 // maximum-entropy policy with exact moment constraints.
 //
 // The classic methods of Tauchen (1986), Tauchen and Hussey (1991) with the
-// Flodén (2008) weighting, and Rouwenhorst (1995; Kopecky and Suen 2010) are
-// provided as baselines.
+// Flodén (2008) weighting, Rouwenhorst (1995; Kopecky and Suen 2010) and the
+// equal-probability intervals of Adda and Cooper (2003) are provided as
+// baselines.
 //
 // The package is pure: values in, values out, no files, flags or logging.
 package solver

@@ -9,6 +9,11 @@ import (
 // the grid's moment vectors, so no probability vector can match it.
 var ErrInfeasible = errors.New("solver: moment target outside the convex hull of the grid")
 
+// ErrNeedsNormal reports a method defined for Gaussian innovations only
+// (Adda and Cooper 2003 cut the normal stationary law into
+// equal-probability intervals) applied to another innovation law.
+var ErrNeedsNormal = errors.New("solver: method adda-cooper needs normal innovations: its intervals are quantiles of the normal stationary law")
+
 // ParamError reports a parameter outside its valid range.
 type ParamError struct {
 	Param string // parameter name as the user knows it, e.g. "rho"

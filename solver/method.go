@@ -1,6 +1,9 @@
 package solver
 
-import "fmt"
+import (
+	"fmt"
+	"strings"
+)
 
 // Method names a discretization method.
 type Method int
@@ -14,9 +17,12 @@ const (
 	TauchenHussey
 	// Rouwenhorst is Rouwenhorst (1995) as analysed by Kopecky and Suen (2010).
 	Rouwenhorst
+	// AddaCooper is the equal-probability-interval method of Adda and Cooper
+	// (2003) for a Gaussian AR(1).
+	AddaCooper
 )
 
-var methodNames = [...]string{"maxent", "tauchen", "tauchen-hussey", "rouwenhorst"}
+var methodNames = [...]string{"maxent", "tauchen", "tauchen-hussey", "rouwenhorst", "adda-cooper"}
 
 func (m Method) String() string {
 	if int(m) >= 0 && int(m) < len(methodNames) {
@@ -32,7 +38,7 @@ func ParseMethod(s string) (Method, error) {
 			return Method(i), nil
 		}
 	}
-	return 0, fmt.Errorf("solver: unknown method %q (want one of maxent, tauchen, tauchen-hussey, rouwenhorst)", s)
+	return 0, fmt.Errorf("solver: unknown method %q (want one of %s)", s, strings.Join(methodNames[:], ", "))
 }
 
 // MethodNames lists the accepted method names.
@@ -40,13 +46,14 @@ func MethodNames() []string { return append([]string(nil), methodNames[:]...) }
 
 // ExactMoments is the number of conditional moments a baseline method
 // matches by construction: Rouwenhorst matches mean and variance
-// (Kopecky and Suen 2010); Tauchen and Tauchen-Hussey match none exactly.
+// (Kopecky and Suen 2010); Tauchen, Tauchen-Hussey and Adda-Cooper match
+// none exactly.
 // For MaxEnt it returns −1: the number is a setting.
 func (m Method) ExactMoments() int {
 	switch m {
 	case Rouwenhorst:
 		return 2
-	case Tauchen, TauchenHussey:
+	case Tauchen, TauchenHussey, AddaCooper:
 		return 0
 	}
 	return -1
