@@ -42,7 +42,7 @@ func (a *ar1Spec) check(r *reporter, at loc) bool {
 	return a.innovation.check(r) && ok
 }
 
-var allMethods = []solver.Method{solver.MaxEnt, solver.Tauchen, solver.TauchenHussey, solver.Rouwenhorst}
+var allMethods = []solver.Method{solver.MaxEnt, solver.Tauchen, solver.TauchenHussey, solver.Rouwenhorst, solver.AddaCooper}
 
 func (a *ar1Spec) methods() []solver.Method   { return allMethods }
 func (a *ar1Spec) baselines() []solver.Method { return allMethods }
@@ -60,7 +60,25 @@ func (a *ar1Spec) momentLimit() (int, string) {
 	return momentLimit(a.innovation, "innovation")
 }
 
-func (a *ar1Spec) rules(*reporter, *processSpec) bool { return true }
+// rules: Adda and Cooper (2003) cut the normal stationary law into
+// equal-probability intervals, so their method (as the chain or as the
+// baseline) needs a normal innovation.
+func (a *ar1Spec) rules(r *reporter, p *processSpec) bool {
+	if a.innovation.fam.name == "normal" {
+		return true
+	}
+	why := "needs a normal innovation (Adda and Cooper 2003 cut the normal stationary law into equal-probability intervals); the innovation is " + a.innovation.fam.name
+	ok := true
+	if p.chosenMethod() == solver.AddaCooper {
+		r.add(p.method.at, ErrRule, "adda-cooper %s", why)
+		ok = false
+	}
+	if p.compare.set && p.compare.v == solver.AddaCooper.String() {
+		r.add(p.compare.at, ErrRule, "adda-cooper %s", why)
+		ok = false
+	}
+	return ok
+}
 
 func (a *ar1Spec) canonical(o object) {
 	o["rho"] = a.rho.v

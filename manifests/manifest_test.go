@@ -19,7 +19,7 @@ var goodManifests = []struct {
 	swept map[string][]string
 }{
 	{"testdata/manifests/good/minimal.yaml", 1, nil},
-	{"testdata/manifests/good/methods.yaml", 7, nil},
+	{"testdata/manifests/good/methods.yaml", 8, nil},
 	{"testdata/manifests/good/innovations.yaml", 4, nil},
 	{"testdata/manifests/good/iid-laws.yaml", 6, nil},
 	{"testdata/manifests/good/sweeps.yaml", 10 + 4 + 3, map[string][]string{

@@ -82,6 +82,7 @@ var schemaCatches = []string{
 	"wrong-shapes.yaml", "var-ragged-matrix.yaml", "var-settings.yaml", "ar1-volatility-log-variance.yaml",
 	"lifecycle-lengths.yaml", "lifecycle-innovations.yaml", "product-components.yaml",
 	"former-names.yaml",
+	"adda-cooper-fat-tails.yaml",
 }
 
 func TestSchemaRejectsBadManifests(t *testing.T) {

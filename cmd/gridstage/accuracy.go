@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"io"
 	"math"
+	"slices"
 	"strings"
 	"text/tabwriter"
 
@@ -46,6 +47,11 @@ func (f *studyFlags) config(allowed []string) (accuracy.Config, []solver.Method,
 	var ms []solver.Method
 	seen := map[string]bool{}
 	for _, m := range f.methods {
+		if !slices.Contains(allowed, m) && m == solver.AddaCooper.String() {
+			if err := univariateOnly("methods", m); err != nil {
+				return accuracy.Config{}, nil, err
+			}
+		}
 		if err := choice("methods", m, allowed); err != nil {
 			return accuracy.Config{}, nil, err
 		}
@@ -93,7 +99,7 @@ func newAccuracyAR1Cmd() *cobra.Command {
 		states           int
 		sf               studyFlags
 	)
-	methods := []string{"maxent", "tauchen", "tauchen-hussey", "rouwenhorst"}
+	methods := []string{"maxent", "tauchen", "tauchen-hussey", "rouwenhorst", "adda-cooper"}
 	cmd := &cobra.Command{
 		Use:   "ar1 --rho R --sigma S [--mean M] --states N [flags]",
 		Short: "Accuracy study for a Gaussian AR(1)",

@@ -51,7 +51,7 @@ func TestAccuracyAR1Text(t *testing.T) {
 	if code != 0 {
 		t.Fatalf("exit %d: %s", code, errOut)
 	}
-	for _, want := range []string{"population least squares", "true process", "rouwenhorst", "tauchen-hussey", "intercept", "rho", "sigma^2"} {
+	for _, want := range []string{"population least squares", "true process", "rouwenhorst", "tauchen-hussey", "adda-cooper", "intercept", "rho", "sigma^2"} {
 		if !strings.Contains(out, want) {
 			t.Errorf("text output lacks %q", want)
 		}
@@ -68,6 +68,7 @@ func TestAccuracyBadInput(t *testing.T) {
 		{[]string{"accuracy", "ar1", "--rho", "0.9", "--sigma", "0.1", "--methods", "maxent,maxent"}, `--methods lists "maxent" twice`},
 		{[]string{"accuracy", "ar1", "--rho", "1", "--sigma", "0.1"}, "--rho 1 is out of range"},
 		{[]string{"accuracy", "var", "--coef", "0.5", "--cov", "1", "--methods", "rouwenhorst"}, `--methods "rouwenhorst" is not recognised: want one of maxent, tauchen`},
+		{[]string{"accuracy", "var", "--coef", "0.5", "--cov", "1", "--methods", "maxent,adda-cooper"}, "--methods adda-cooper does not apply to a VAR"},
 		{[]string{"accuracy", "var", "--coef", "1.5", "--cov", "1"}, "--coef has spectral radius 1.5"},
 		{[]string{"accuracy", "arma"}, `unknown process kind "arma"`},
 	}

@@ -58,7 +58,7 @@ func (m *methodSettings) register(cmd *cobra.Command, withMethod bool) {
 	fs.Float64Var(&m.width, "width", 0, "half-width of lattice, gauss-legendre and tauchen grids in unconditional s.d. (default sqrt(states-1); 3 for tauchen)")
 	fs.BoolVar(&m.json, "json", false, "print one JSON object instead of tables")
 	if withMethod {
-		fs.StringVar(&m.method, "method", "maxent", "maxent, tauchen, tauchen-hussey or rouwenhorst")
+		fs.StringVar(&m.method, "method", "maxent", "maxent, tauchen, tauchen-hussey, rouwenhorst or adda-cooper")
 		fs.BoolVar(&m.floden, "floden", false, "tauchen-hussey: use the Flodén (2008) base standard deviation")
 		fs.StringVar(&m.compare, "compare", "", "baseline method shown beside the chain, or none (default tauchen; rouwenhorst when --method is tauchen)")
 	}

@@ -30,6 +30,9 @@ func newAR1Cmd() *cobra.Command {
 			if err != nil {
 				return err
 			}
+			if err := needsNormal(z, s.Method, ms.compare); err != nil {
+				return err
+			}
 			p := solver.AR1{Mean: mean, Rho: rho, Sigma: sigma, Shock: z}
 			if err := p.Validate(); err != nil {
 				return flagError(err, paramFlags)
@@ -57,6 +60,23 @@ func newAR1Cmd() *cobra.Command {
 	ms.register(cmd, true)
 	shock.register(fs, "innovation", "normal", "innovation law: normal, mixture, t or laplace (standardized to mean 0, variance 1)")
 	return cmd
+}
+
+// needsNormal refuses adda-cooper, as the chain's or the baseline's method,
+// with a non-normal innovation (z non-nil): Adda and Cooper (2003) cut the
+// normal stationary law into equal-probability intervals.
+func needsNormal(z solver.Distribution, method solver.Method, compare string) error {
+	if z == nil {
+		return nil
+	}
+	const why = "needs --innovation normal: Adda and Cooper (2003) cut the normal stationary law into equal-probability intervals"
+	if method == solver.AddaCooper {
+		return badInput("--method adda-cooper %s", why)
+	}
+	if compare == solver.AddaCooper.String() {
+		return badInput("--compare adda-cooper %s", why)
+	}
+	return nil
 }
 
 // innovation builds the standardized innovation law (nil for normal).

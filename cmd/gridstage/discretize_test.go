@@ -60,6 +60,41 @@ func TestDiscretizeAR1JSON(t *testing.T) {
 	}
 }
 
+// The Adda and Cooper (2003) chain from the command line: the stationary
+// law in the JSON is uniform and the grid averages to the mean [derived in
+// solver/addacooper.go]; tolerance 1e-12, the JSON round trip plus the
+// stationary solve's rounding. The default baseline is Tauchen.
+func TestDiscretizeAddaCooperJSON(t *testing.T) {
+	code, out, errOut := run(t, "discretize", "ar1", "--rho", "0.99", "--sigma", "0.05", "--mean", "1", "--states", "5", "--method", "adda-cooper", "--json")
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, errOut)
+	}
+	var got struct {
+		Method     string      `json:"method"`
+		Grid       [][]float64 `json:"grid"`
+		Stationary []float64   `json:"stationary"`
+		Baseline   *struct {
+			Method string `json:"method"`
+		} `json:"baseline"`
+	}
+	if err := json.Unmarshal([]byte(out), &got); err != nil {
+		t.Fatalf("output is not one JSON object: %v\n%s", err, out)
+	}
+	if got.Method != "adda-cooper" || len(got.Grid) != 5 || got.Baseline == nil || got.Baseline.Method != "tauchen" {
+		t.Fatalf("method %q, %d states, baseline %+v", got.Method, len(got.Grid), got.Baseline)
+	}
+	var mean float64
+	for i, p := range got.Stationary {
+		if math.Abs(p-0.2) > 1e-12 {
+			t.Errorf("stationary[%d] = %.17g, want 1/5", i, p)
+		}
+		mean += got.Grid[i][0] / 5
+	}
+	if math.Abs(mean-1) > 1e-12 {
+		t.Errorf("grid average %.17g, want the mean 1", mean)
+	}
+}
+
 func TestDiscretizeTextShowsBaseline(t *testing.T) {
 	code, out, _ := run(t, "discretize", "ar1", "--rho", "0.95", "--sigma", "0.12", "--states", "9", "--compare", "rouwenhorst")
 	if code != 0 {
@@ -108,6 +143,9 @@ func TestDiscretizeBadInput(t *testing.T) {
 		{[]string{"discretize", "ar1", "--rho", "0.5", "--sigma", "1", "--method", "rouwenhorst", "--moments", "4"}, "--moments applies to --method maxent only"},
 		{[]string{"discretize", "ar1", "--rho", "0.5", "--sigma", "1", "--innovation", "t", "--nu", "3", "--moments", "4"}, "--moments 4 is out of range: want an integer from 1 to 2, since the t innovation has no finite moment of order 3"},
 		{[]string{"discretize", "ar1", "--rho", "0.5", "--sigma", "1", "--method", "nearest"}, `--method "nearest" is not recognised`},
+		{[]string{"discretize", "ar1", "--rho", "0.5", "--sigma", "1", "--method", "adda-cooper", "--innovation", "laplace"}, "--method adda-cooper needs --innovation normal"},
+		{[]string{"discretize", "ar1", "--rho", "0.5", "--sigma", "1", "--compare", "adda-cooper", "--innovation", "t", "--nu", "5"}, "--compare adda-cooper needs --innovation normal"},
+		{[]string{"discretize", "ar1", "--rho", "0.5", "--sigma", "1", "--method", "adda-cooper", "--grid", "quantile"}, "--grid applies to --method maxent only"},
 		{[]string{"discretize", "ar1", "--rho", "0.5", "--sigma", "1", "--bogus"}, "unknown flag: --bogus"},
 		{[]string{"discretize", "ar1", "--sigma", "1"}, "--rho is required"},
 		{[]string{"discretize", "ar2"}, `unknown process kind "ar2"`},

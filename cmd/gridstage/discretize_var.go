@@ -86,6 +86,9 @@ func (v *varSettings) settings(cmd *cobra.Command, d int) (solver.Settings, erro
 	if err := axisStates(v.states, d); err != nil {
 		return s, err
 	}
+	if err := univariateOnly("method", v.method); err != nil {
+		return s, err
+	}
 	if err := choice("method", v.method, []string{"maxent", "tauchen"}); err != nil {
 		return s, err
 	}
@@ -162,6 +165,9 @@ func (v *varSettings) baseline(main solver.Method) (solver.Method, bool, error) 
 			return solver.MaxEnt, true, nil
 		}
 		return solver.Tauchen, true, nil
+	}
+	if err := univariateOnly("compare", v.compare); err != nil {
+		return 0, false, err
 	}
 	if err := choice("compare", v.compare, []string{"maxent", "tauchen", "none"}); err != nil {
 		return 0, false, err

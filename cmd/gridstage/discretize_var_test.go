@@ -106,6 +106,8 @@ func TestDiscretizeVARBadInput(t *testing.T) {
 		{append(ok, "--moments", "5"), "--moments 5 is out of range: want an integer from 1 to 4"},
 		{append(ok, "--width", "0"), "--width 0 is out of range"},
 		{append(ok, "--compare", "rouwenhorst"), `--compare "rouwenhorst" is not recognised`},
+		{append(ok, "--method", "adda-cooper"), "--method adda-cooper does not apply to a VAR"},
+		{append(ok, "--compare", "adda-cooper"), "--compare adda-cooper does not apply to a VAR"},
 	}
 	for _, c := range cases {
 		code, out, errOut := run(t, append([]string{"discretize", "var"}, c.args...)...)

@@ -11,6 +11,19 @@ import (
 	"gridstage/solver"
 )
 
+// univariateOnly refuses a method that is defined for a univariate AR(1)
+// only when it is asked for on a VAR, saying why. Adda and Cooper (2003)
+// cut a univariate normal stationary law into equal-probability
+// intervals; applying that per axis is not their method (unless the axes
+// are independent AR(1)s, the next period's value on one axis depends on
+// the others), so gridstage does not offer it.
+func univariateOnly(flag, method string) error {
+	if method == solver.AddaCooper.String() {
+		return badInput("--%s adda-cooper does not apply to a VAR: Adda and Cooper (2003) cut the stationary law of a univariate normal AR(1) into equal-probability intervals; want maxent or tauchen", flag)
+	}
+	return nil
+}
+
 // varFlags describe a VAR(1) x' = c + B x + ε, ε ~ N(0, Ψ), on the command
 // line as row-major comma-separated lists: --intercept c, --coef B, --cov Ψ.
 type varFlags struct {
