@@ -1,6 +1,9 @@
 package solver
 
-import "math"
+import (
+	"math"
+	"sync"
+)
 
 // The equal-probability-interval method of Adda and Cooper (2003) for the
 // Gaussian AR(1) x' = (1 − ρ) μ + ρ x + σ ε.
@@ -108,8 +111,10 @@ func addaCooperMatrix(n int, rho float64, trans []float64) {
 // |Im β| ≤ V = |ρ|Y/s ≤ 1, so, from |φ(x+iy)| = φ(x) e^{y²/2} and
 // Φ(u+iv) = Φ(u) + i ∫_0^v φ(u+iτ) dτ,
 //
-//	|g| ≤ M = φ(0) e^{Y²/2} · 2 (1 + φ(0) V e^{V²/2}).
+//	|g| ≤ M = φ(x₀) e^{Y²/2} · 2 (1 + φ(0) V e^{V²/2}),
 //
+// where x₀ is the point of the ellipse's real range closest to 0 (so tail
+// panels, where φ is tiny, need few points).
 // Gauss-Legendre with n_p points then errs by at most
 // h · (64/15) M r^{−2n_p}/(r² − 1) (Trefethen 2008, "Is Gauss quadrature
 // better than Clenshaw-Curtis?", SIAM Review 50, Theorem 4.5 [memory]), and
@@ -128,11 +133,10 @@ func addaCooperRaw(n int, rho float64, trans []float64) (bound, rowDefect float6
 	}
 	v := math.Abs(rho) * y / s
 	phi0 := 1 / math.Sqrt(2*math.Pi)
-	mBound := phi0 * math.Exp(y*y/2) * 2 * (1 + phi0*v*math.Exp(v*v/2))
+	mScale := math.Exp(y*y/2) * 2 * (1 + phi0*v*math.Exp(v*v/2)) // M / φ(x₀)
 	nf := float64(n)
 	tail := nf * 0.5 * math.Erfc(addaCooperTail/math.Sqrt2)
 
-	rules := map[int]Rule{}
 	var nodes, weights []float64
 	row := make([]float64, n)
 	for i := 0; 2*i < n; i++ {
@@ -141,24 +145,23 @@ func addaCooperRaw(n int, rho float64, trans []float64) (bound, rowDefect float6
 		panels := math.Ceil((hi - lo) / y)
 		h := (hi - lo) / (2 * panels)
 		r := y/h + math.Sqrt(y*y/(h*h)+1)
-		// Smallest n_p with N·h·(64/15)·M·r^{−2n_p}/(r²−1) ≤ δ·2h/N.
-		np := int(math.Ceil(math.Log(nf*nf*64*mBound/(15*2*addaCooperTol*(r*r-1))) / (2 * math.Log(r))))
-		np = max(np, 1)
-		per := nf * h * 64 * mBound / 15 * math.Pow(r, -2*float64(np)) / (r*r - 1)
-		bound = math.Max(bound, per*panels+tail)
-		rule, ok := rules[np]
-		if !ok {
-			rule = GaussLegendre(np, -1, 1)
-			rules[np] = rule
-		}
+		reach := h * (r + 1/r) / 2 // the ellipse's real semi-axis
+		var sum float64
 		for p := 0; p < int(panels); p++ {
 			mid := lo + h*float64(2*p+1)
+			mBound := stdNormalPDF(math.Max(0, math.Abs(mid)-reach)) * mScale
+			// Smallest n_p with N·h·(64/15)·M·r^{−2n_p}/(r²−1) ≤ δ·2h/N.
+			np := int(math.Ceil(math.Log(nf*nf*64*mBound/(15*2*addaCooperTol*(r*r-1))) / (2 * math.Log(r))))
+			np = max(np, 1)
+			sum += nf * h * 64 * mBound / 15 * math.Pow(r, -2*float64(np)) / (r*r - 1)
+			rule := gaussLegendreUnit(np)
 			for k, x := range rule.Nodes {
 				t := mid + h*x
 				nodes = append(nodes, t)
 				weights = append(weights, nf*h*rule.Weights[k]*stdNormalPDF(t))
 			}
 		}
+		bound = math.Max(bound, sum+tail)
 		// Entries j = i … n−1−i of row i; boundary b of interval j is a_b.
 		last := n - 1 - i
 		for j := i; j <= last; j++ {
@@ -193,6 +196,20 @@ func addaCooperRaw(n int, rho float64, trans []float64) (bound, rowDefect float6
 		rowDefect = math.Max(rowDefect, math.Abs(sum-1))
 	}
 	return bound, rowDefect
+}
+
+// unitRules caches Gauss-Legendre rules on [−1, 1] by point count: the
+// rules never change, and computing one costs an eigen-decomposition.
+var unitRules sync.Map // int → Rule
+
+// gaussLegendreUnit returns the n-point Gauss-Legendre rule on [−1, 1]
+// (shared: callers must not modify it).
+func gaussLegendreUnit(n int) Rule {
+	if r, ok := unitRules.Load(n); ok {
+		return r.(Rule)
+	}
+	r, _ := unitRules.LoadOrStore(n, GaussLegendre(n, -1, 1))
+	return r.(Rule)
 }
 
 // normalTails returns Φ(x) and 1 − Φ(x) at x = (c − ρt)/s, and x itself;
