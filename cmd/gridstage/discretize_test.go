@@ -145,7 +145,7 @@ func TestDiscretizeBadInput(t *testing.T) {
 		{[]string{"discretize", "ar1", "--rho", "0.5", "--sigma", "1", "--method", "nearest"}, `--method "nearest" is not recognised`},
 		{[]string{"discretize", "ar1", "--rho", "0.5", "--sigma", "1", "--method", "adda-cooper", "--innovation", "laplace"}, "--method adda-cooper needs --innovation normal"},
 		{[]string{"discretize", "ar1", "--rho", "0.5", "--sigma", "1", "--compare", "adda-cooper", "--innovation", "t", "--nu", "5"}, "--compare adda-cooper needs --innovation normal"},
-		{[]string{"discretize", "ar1", "--rho", "0.5", "--sigma", "1", "--method", "adda-cooper", "--grid", "quantile"}, "--grid applies to --method maxent only"},
+		{[]string{"discretize", "ar1", "--rho", "0.5", "--sigma", "1", "--method", "adda-cooper", "--nodes", "equal-mass"}, "--nodes applies to --method maxent only"},
 		{[]string{"discretize", "ar1", "--rho", "0.5", "--sigma", "1", "--bogus"}, "unknown flag: --bogus"},
 		{[]string{"discretize", "ar1", "--sigma", "1"}, "--rho is required"},
 		{[]string{"discretize", "ar2"}, `unknown process kind "ar2"`},
