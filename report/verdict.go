@@ -78,6 +78,8 @@ func assess(c figures.Case, age bool) Verdict {
 	}
 	if d.StationaryErr != "" && !age {
 		v.flag(Unfit, "The chain has no unique stationary distribution (%s).", d.StationaryErr)
+	} else if d.Degenerate != "" && !age {
+		v.flag(Caution, "The chain is degenerate: %s.", d.Degenerate)
 	}
 	if k := c.Chain.Fallbacks(); k > 0 {
 		least := c.Chain.Moments

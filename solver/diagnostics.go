@@ -59,6 +59,9 @@ type Diagnostics struct {
 	// StationaryErr is non-empty when the stationary distribution could not
 	// be computed (a reducible chain).
 	StationaryErr string `json:"stationary_error,omitempty"`
+	// Degenerate says why the chain is degenerate (an identity or reducible
+	// transition matrix, see Structure.Degenerate); empty when irreducible.
+	Degenerate string `json:"degenerate,omitempty"`
 }
 
 // Diagnose computes the diagnostics of a univariate chain against the truth.
@@ -84,9 +87,13 @@ func Diagnose(c *Chain, truth Truth) Diagnostics {
 		d.WorstRelErr.Kurt = math.Max(d.WorstRelErr.Kurt, math.Abs(rel.Kurt))
 	}
 	d.True = truth.Unconditional()
+	d.Degenerate = Classify(c.Transition, n).Degenerate()
 	pi, err := Stationary(c.Transition, n)
 	if err != nil {
 		d.StationaryErr = err.Error()
+		if d.Degenerate == "" {
+			d.Degenerate = "nearly decomposable: the stationary distribution cannot be computed in floating point"
+		}
 		return d
 	}
 	d.Stationary = pi

@@ -1,9 +1,13 @@
 package solver
 
 import (
+	"bytes"
+	"encoding/json"
 	"errors"
 	"math"
 	"testing"
+
+	"gridstage/internal/finitejson"
 )
 
 // FuzzAR1 drives every method over arbitrary (ρ, σ, N, L, innovation, grid):
@@ -55,6 +59,26 @@ func FuzzAR1(f *testing.F) {
 			if math.IsNaN(pi) || pi < 0 {
 				t.Fatalf("%+v %+v: stationary probability %g", p, s, pi)
 			}
+		}
+		// Every maximum-entropy state carries a certificate. (Extreme inputs
+		// such as 8 moments on 8 Gauss-Hermite points at ρ = 0.999 can
+		// leave a fallback whose proof is lost to rounding: it is recorded
+		// as unproven, never hidden; TestFallbacksAgainstLP covers the
+		// working range.)
+		for i := range c.Matched {
+			if s.Method == MaxEnt && c.Certificate(i) == CertNone {
+				t.Fatalf("%+v %+v: state %d has certificate %s", p, s, i, c.Certificate(i))
+			}
+		}
+		// No output carries a non-finite number: the JSON the commands
+		// print (finitejson) is valid JSON whatever the diagnostics hold,
+		// and a degenerate chain says so.
+		var buf bytes.Buffer
+		if err := finitejson.Encode(&buf, d); err != nil || !json.Valid(buf.Bytes()) {
+			t.Fatalf("%+v %+v: diagnostics JSON: %v", p, s, err)
+		}
+		if d.Stationary == nil && (d.StationaryErr == "" || d.Degenerate == "") {
+			t.Fatalf("%+v %+v: no stationary distribution and no reason", p, s)
 		}
 	})
 }

@@ -4,7 +4,7 @@ import "math"
 
 // maxHullFacets bounds the facets the exact feasibility test enumerates;
 // beyond it (fine grids, many moments) infeasibility is left to Newton.
-const maxHullFacets = 50000
+const maxHullFacets = 200000
 
 // powerMomentsFeasible decides whether standardized power-moment targets
 // t_k = E z^k (k = 1..L) can be matched by a distribution with positive
@@ -30,13 +30,32 @@ func powerMomentsFeasible(z, targets []float64) (feasible, decided bool) {
 // of the violated facet in the coordinates of fillDeviations: with
 // dev_jk = z_j^{k+1} − t_k, y·dev_j = ±(P_S(z_j) − E P_S), which is ≥ 0 up
 // to the target's distance from the facet. y is nil for an interior target
-// or an undecided test. With n ≤ L points (no interior) y is the direction
-// of the first moment, which need not separate; decided is true.
+// or an undecided test. With n ≤ L points the hull has no interior: y
+// comes from P(z) = Π_j (z − z_j), which vanishes on the whole grid, so
+// y·dev_j = −E P is the same for every j and separates unless the target
+// happens to satisfy E P = 0.
 func powerMomentsSeparator(z, targets []float64) (y []float64, decided bool) {
 	n, L := len(z), len(targets)
 	if n <= L {
+		coef := make([]float64, n+1)
+		coef[0] = 1
+		for deg, r := range z {
+			for k := deg + 1; k >= 1; k-- {
+				coef[k] = coef[k-1] - r*coef[k]
+			}
+			coef[0] = -r * coef[0]
+		}
+		e := coef[0]
+		for k := 1; k <= n; k++ {
+			e += coef[k] * targets[k-1]
+		}
+		if e == 0 {
+			return nil, true
+		}
 		y = make([]float64, L)
-		y[0] = 1
+		for k := 1; k <= n; k++ {
+			y[k-1] = -math.Copysign(1, e) * coef[k]
+		}
 		return y, true
 	}
 	if binomial(n, (L+1)/2) > maxHullFacets {

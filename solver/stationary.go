@@ -2,19 +2,63 @@ package solver
 
 import (
 	"errors"
+	"fmt"
 	"math"
 )
 
 // ErrReducible reports a chain whose stationary distribution is not unique.
 var ErrReducible = errors.New("solver: chain is reducible; its stationary distribution is not unique")
 
+// ErrNearlyDecomposable reports an irreducible chain whose links between
+// groups of states are so weak that the elimination underflows.
+var ErrNearlyDecomposable = errors.New("solver: chain is nearly decomposable: some links between states underflow in floating point, so its stationary distribution cannot be computed")
+
 // Stationary returns the stationary distribution π (π P = π, Σ π = 1) of
 // the n×n row-stochastic matrix trans by the Grassmann-Taksar-Heyman (1985)
 // elimination, which involves no subtractions and so stays accurate even for
 // nearly decomposable chains where power iteration stalls. trans is not
-// modified. It returns ErrReducible if elimination meets a state that cannot
-// reach the states below it.
+// modified. A reducible chain with one closed class (Classify) has its
+// distribution on that class and zero on the transient states; with
+// several closed classes the distribution is not unique and Stationary
+// returns an error wrapping ErrReducible that says why.
 func Stationary(trans []float64, n int) ([]float64, error) {
+	st := Classify(trans, n)
+	if st.Irreducible {
+		pi, err := gth(trans, n)
+		if err != nil {
+			return nil, ErrNearlyDecomposable
+		}
+		return pi, nil
+	}
+	if !st.UniqueStationary() {
+		return nil, fmt.Errorf("%w (%s)", ErrReducible, st.Degenerate())
+	}
+	var members []int
+	for v := 0; v < n; v++ {
+		if st.closed[st.class[v]] {
+			members = append(members, v)
+		}
+	}
+	m := len(members)
+	sub := make([]float64, m*m)
+	for a, v := range members {
+		for b, w := range members {
+			sub[a*m+b] = trans[v*n+w]
+		}
+	}
+	piSub, err := gth(sub, m)
+	if err != nil {
+		return nil, err
+	}
+	pi := make([]float64, n)
+	for a, v := range members {
+		pi[v] = piSub[a]
+	}
+	return pi, nil
+}
+
+// gth is the elimination itself, for an irreducible chain.
+func gth(trans []float64, n int) ([]float64, error) {
 	a := append([]float64(nil), trans...)
 	for k := n - 1; k >= 1; k-- {
 		var s float64

@@ -52,6 +52,8 @@ type VectorDiagnostics struct {
 	// StationaryErr is non-empty when the stationary distribution could not
 	// be computed (a reducible chain); the stationary fields are then empty.
 	StationaryErr string `json:"stationary_error,omitempty"`
+	// Degenerate says why the chain is degenerate; empty when irreducible.
+	Degenerate string `json:"degenerate,omitempty"`
 }
 
 // DiagnoseVector computes the diagnostics of a chain of dimension
@@ -99,9 +101,13 @@ func DiagnoseVector(c *Chain, truth VectorTruth) VectorDiagnostics {
 	}
 	out.True = truth.VectorUnconditional()
 	out.TrueAutocorr = autocorrelation(out.True, d)
+	out.Degenerate = Classify(c.Transition, n).Degenerate()
 	pi, err := Stationary(c.Transition, n)
 	if err != nil {
 		out.StationaryErr = err.Error()
+		if out.Degenerate == "" {
+			out.Degenerate = "nearly decomposable: the stationary distribution cannot be computed in floating point"
+		}
 		return out
 	}
 	out.Stationary = pi

@@ -1,7 +1,6 @@
 package main
 
 import (
-	"encoding/json"
 	"fmt"
 	"io"
 	"math"
@@ -13,6 +12,7 @@ import (
 	"github.com/spf13/pflag"
 
 	"gridstage/accuracy"
+	"gridstage/internal/finitejson"
 	"gridstage/solver"
 )
 
@@ -202,9 +202,7 @@ func newAccuracyVARCmd() *cobra.Command {
 // printStudy prints the report as tables or as one JSON object.
 func printStudy(w io.Writer, title, kind string, rep accuracy.Report, asJSON bool) error {
 	if asJSON {
-		enc := json.NewEncoder(w)
-		enc.SetIndent("", "  ")
-		return enc.Encode(struct {
+		return finitejson.Encode(w, struct {
 			Kind string `json:"kind"`
 			accuracy.Report
 		}{kind, rep})

@@ -1,12 +1,12 @@
 package main
 
 import (
-	"encoding/json"
 	"fmt"
 	"io"
 	"strings"
 	"text/tabwriter"
 
+	"gridstage/internal/finitejson"
 	"gridstage/solver"
 )
 
@@ -28,13 +28,17 @@ type chainReport struct {
 // chainJSON is the JSON shape (contract: grid is an array of state vectors,
 // transition an array of rows).
 type chainJSON struct {
-	Kind        string             `json:"kind"`
-	Process     map[string]any     `json:"process"`
-	Method      string             `json:"method"`
-	Moments     int                `json:"moments"`
-	Grid        [][]float64        `json:"grid"`
-	Transition  [][]float64        `json:"transition"`
-	Stationary  []float64          `json:"stationary"`
+	Kind       string         `json:"kind"`
+	Process    map[string]any `json:"process"`
+	Method     string         `json:"method"`
+	Moments    int            `json:"moments"`
+	Grid       [][]float64    `json:"grid"`
+	Transition [][]float64    `json:"transition"`
+	Stationary []float64      `json:"stationary"`
+	// StationaryReason says why stationary is null.
+	StationaryReason string `json:"stationary_reason,omitempty"`
+	// Degenerate says why the chain is degenerate (identity, reducible).
+	Degenerate  string             `json:"degenerate,omitempty"`
 	Matched     []int              `json:"matched"`
 	Diagnostics solver.Diagnostics `json:"diagnostics"`
 	Baseline    *baselineJSON      `json:"baseline,omitempty"`
@@ -69,15 +73,16 @@ func (r chainReport) print(w io.Writer, asJSON bool) error {
 		j := chainJSON{
 			Kind: r.Kind, Process: r.Process, Method: r.Chain.Method.String(), Moments: r.Chain.Moments,
 			Grid: gridRows(r.Chain), Transition: transitionRows(r.Chain), Stationary: r.Diag.Stationary,
-			Matched: r.Chain.Matched, Diagnostics: r.Diag, provenance: r.Provenance,
+			Matched: r.Chain.Matched, Diagnostics: r.Diag, provenance: r.Provenance, Degenerate: r.Diag.Degenerate,
+		}
+		if j.Stationary == nil {
+			j.StationaryReason = r.Diag.StationaryErr
 		}
 		if r.Baseline != nil {
 			j.Baseline = &baselineJSON{Method: r.Baseline.Method.String(), Grid: gridRows(r.Baseline),
 				Transition: transitionRows(r.Baseline), Diagnostics: *r.BaselineDiag}
 		}
-		enc := json.NewEncoder(w)
-		enc.SetIndent("", "  ")
-		return enc.Encode(j)
+		return finitejson.Encode(w, j)
 	}
 	return r.printText(w)
 }
@@ -149,8 +154,8 @@ func (r chainReport) printText(w io.Writer) error {
 	worst("skewness", func(m solver.Moments) float64 { return m.Skew })
 	worst("kurtosis", func(m solver.Moments) float64 { return m.Kurt })
 	tw.Flush()
-	if d.StationaryErr != "" {
-		fmt.Fprintln(w, "\nwarning: "+d.StationaryErr)
+	if d.Degenerate != "" {
+		fmt.Fprintln(w, "\nwarning: degenerate chain: "+d.Degenerate)
 	}
 	if k := c.Fallbacks(); k > 0 {
 		fmt.Fprintf(w, "\nwarning: %d state(s) could not match all %d moments (the grid cannot carry them there); see the matched column\n", k, c.Moments)

@@ -1,13 +1,13 @@
 package main
 
 import (
-	"encoding/json"
 	"fmt"
 	"io"
 	"text/tabwriter"
 
 	"github.com/spf13/cobra"
 
+	"gridstage/internal/finitejson"
 	"gridstage/solver"
 )
 
@@ -154,9 +154,7 @@ func printIID(w io.Writer, law map[string]any, d *solver.Discrete, p solver.IID,
 		for i, x := range d.Nodes {
 			grid[i] = []float64{x}
 		}
-		enc := json.NewEncoder(w)
-		enc.SetIndent("", "  ")
-		return enc.Encode(iidJSON{Kind: "iid", Distribution: law, Grid: grid, Weights: d.Weights, Moments: d.Moments,
+		return finitejson.Encode(w, iidJSON{Kind: "iid", Distribution: law, Grid: grid, Weights: d.Weights, Moments: d.Moments,
 			Diagnostics: iidDiag{Matched: d.Matched, Discrete: got, True: truth}, provenance: prov})
 	}
 	fmt.Fprintf(w, "%s distribution, %d points, %d of %d moments matched\n\n", law["law"], len(d.Nodes), d.Matched, d.Moments)

@@ -1,7 +1,6 @@
 package main
 
 import (
-	"encoding/json"
 	"fmt"
 	"io"
 	"math"
@@ -10,6 +9,7 @@ import (
 
 	"github.com/spf13/cobra"
 
+	"gridstage/internal/finitejson"
 	"gridstage/solver"
 )
 
@@ -223,9 +223,7 @@ func (r varReport) print(w io.Writer, asJSON bool) error {
 			j.Baseline = &varBaselineJSON{Method: r.Baseline.Method.String(), Grid: gridRows(r.Baseline),
 				Transition: transitionRows(r.Baseline), Diagnostics: *r.BaselineDiag}
 		}
-		enc := json.NewEncoder(w)
-		enc.SetIndent("", "  ")
-		return enc.Encode(j)
+		return finitejson.Encode(w, j)
 	}
 	return r.printText(w)
 }

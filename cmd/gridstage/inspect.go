@@ -13,6 +13,7 @@ import (
 	"github.com/spf13/cobra"
 
 	"gridstage/formats"
+	"gridstage/internal/finitejson"
 	"gridstage/solver"
 )
 
@@ -269,9 +270,7 @@ func showRecord(w io.Writer, r *formats.Reader, rec *formats.Record, next *forma
 			j.Transition = transitionRows(c)
 			j.Diag = &rec.Diag
 		}
-		enc := json.NewEncoder(w)
-		enc.SetIndent("", "  ")
-		return enc.Encode(j)
+		return finitejson.Encode(w, j)
 	}
 	fmt.Fprintf(w, "run %s, process %s (%s), sweep point %d of %d", r.Header.Run, r.Header.Process, r.Header.Kind, rec.Point, r.Points)
 	if len(r.Header.Params) > 0 {
