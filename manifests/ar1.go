@@ -47,13 +47,15 @@ var allMethods = []solver.Method{solver.MaxEnt, solver.Tauchen, solver.TauchenHu
 func (a *ar1Spec) methods() []solver.Method   { return allMethods }
 func (a *ar1Spec) baselines() []solver.Method { return allMethods }
 
-// defaultBaseline compares with Tauchen (1986), the most common choice, or
-// with Rouwenhorst when Tauchen is the main method.
+// defaultBaseline compares with Rouwenhorst (1995), exact in the
+// conditional mean and variance and the most accurate of the classic
+// methods for persistent processes (Kopecky and Suen 2010), or with maxent
+// when Rouwenhorst is the main method: the rule of kind lifecycle too.
 func (a *ar1Spec) defaultBaseline(m solver.Method) (solver.Method, bool) {
-	if m == solver.Tauchen {
-		return solver.Rouwenhorst, true
+	if m == solver.Rouwenhorst {
+		return solver.MaxEnt, true
 	}
-	return solver.Tauchen, true
+	return solver.Rouwenhorst, true
 }
 
 func (a *ar1Spec) momentLimit() (int, string) {

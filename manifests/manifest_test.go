@@ -179,9 +179,9 @@ func TestBuildMatchesSolver(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	wantBase, _ := direct.Discretize(solver.Settings{States: 9, Method: solver.Tauchen})
+	wantBase, _ := direct.Discretize(solver.Settings{States: 9, Method: solver.Rouwenhorst})
 	if !reflect.DeepEqual(base, wantBase) {
-		t.Errorf("baseline chain differs from Tauchen with its default width")
+		t.Errorf("baseline chain differs from Rouwenhorst, the default baseline")
 	}
 	if p.Truth().Unconditional().Autocorr != 0.9 {
 		t.Errorf("truth is not the AR(1) with rho 0.9")

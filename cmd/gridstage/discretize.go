@@ -60,7 +60,7 @@ func (m *methodSettings) register(cmd *cobra.Command, withMethod bool) {
 	if withMethod {
 		fs.StringVar(&m.method, "method", "maxent", "maxent, tauchen, tauchen-hussey, rouwenhorst or adda-cooper")
 		fs.BoolVar(&m.floden, "floden", false, "tauchen-hussey: use the Flodén (2008) base standard deviation")
-		fs.StringVar(&m.compare, "compare", "", "baseline method shown beside the chain, or none (default tauchen; rouwenhorst when --method is tauchen)")
+		fs.StringVar(&m.compare, "compare", "", "baseline method shown beside the chain, or none (default rouwenhorst; maxent when --method is rouwenhorst)")
 	}
 }
 
@@ -147,22 +147,13 @@ func (m *methodSettings) entry(cmd *cobra.Command, e map[string]any) map[string]
 	return e
 }
 
-// baseline returns the comparison method, or false for none.
-func (m *methodSettings) baseline(main solver.Method) (solver.Method, bool, error) {
-	switch m.compare {
-	case "none":
-		return 0, false, nil
-	case "":
-		if main == solver.Tauchen {
-			return solver.Rouwenhorst, true, nil
-		}
-		return solver.Tauchen, true, nil
+// checkCompare validates --compare; the default baseline is the
+// manifest's (the process entry leaves compare out).
+func (m *methodSettings) checkCompare() error {
+	if m.compare == "" {
+		return nil
 	}
-	if err := choice("compare", m.compare, append(solver.MethodNames(), "none")); err != nil {
-		return 0, false, err
-	}
-	b, _ := solver.ParseMethod(m.compare)
-	return b, true, nil
+	return choice("compare", m.compare, append(solver.MethodNames(), "none"))
 }
 
 // paramFlags maps solver parameter names to the flags that set them.

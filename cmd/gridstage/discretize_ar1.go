@@ -37,7 +37,7 @@ func newAR1Cmd() *cobra.Command {
 			if err := p.Validate(); err != nil {
 				return flagError(err, paramFlags)
 			}
-			if _, _, err := ms.baseline(s.Method); err != nil {
+			if err := ms.checkCompare(); err != nil {
 				return err
 			}
 			entry := ms.entry(cmd, map[string]any{"kind": "ar1", "rho": rho, "sigma": sigma, "mean": mean})

@@ -55,7 +55,7 @@ func TestDiscretizeAR1JSON(t *testing.T) {
 	if math.Abs(got.Diagnostics.Chain.Autocorr-0.9) > 1e-11 {
 		t.Errorf("autocorrelation %.15g, want 0.9", got.Diagnostics.Chain.Autocorr)
 	}
-	if got.Baseline == nil || got.Baseline.Method != "tauchen" {
+	if got.Baseline == nil || got.Baseline.Method != "rouwenhorst" { // the default baseline of an AR(1)
 		t.Errorf("baseline missing or wrong: %+v", got.Baseline)
 	}
 }
@@ -80,7 +80,7 @@ func TestDiscretizeAddaCooperJSON(t *testing.T) {
 	if err := json.Unmarshal([]byte(out), &got); err != nil {
 		t.Fatalf("output is not one JSON object: %v\n%s", err, out)
 	}
-	if got.Method != "adda-cooper" || len(got.Grid) != 5 || got.Baseline == nil || got.Baseline.Method != "tauchen" {
+	if got.Method != "adda-cooper" || len(got.Grid) != 5 || got.Baseline == nil || got.Baseline.Method != "rouwenhorst" { // the default baseline
 		t.Fatalf("method %q, %d states, baseline %+v", got.Method, len(got.Grid), got.Baseline)
 	}
 	var mean float64
