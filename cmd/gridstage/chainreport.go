@@ -21,6 +21,9 @@ type chainReport struct {
 	// MomentsHeading replaces "unconditional moments" above the table of
 	// the chain's moments (for a life-cycle age, the next age's marginal).
 	MomentsHeading string
+	// Advice says what grid would carry the requested moments (computed,
+	// solver.Advise); empty when none was computed.
+	Advice string
 	// Provenance identifies a chain made by `discretize`; nil elsewhere.
 	Provenance *provenance
 }
@@ -38,7 +41,9 @@ type chainJSON struct {
 	// StationaryReason says why stationary is null.
 	StationaryReason string `json:"stationary_reason,omitempty"`
 	// Degenerate says why the chain is degenerate (identity, reducible).
-	Degenerate  string             `json:"degenerate,omitempty"`
+	Degenerate string `json:"degenerate,omitempty"`
+	// Advice says what grid would carry the requested moments.
+	Advice      string             `json:"advice,omitempty"`
 	Matched     []int              `json:"matched"`
 	Diagnostics solver.Diagnostics `json:"diagnostics"`
 	Baseline    *baselineJSON      `json:"baseline,omitempty"`
@@ -74,6 +79,7 @@ func (r chainReport) print(w io.Writer, asJSON bool) error {
 			Kind: r.Kind, Process: r.Process, Method: r.Chain.Method.String(), Moments: r.Chain.Moments,
 			Grid: gridRows(r.Chain), Transition: transitionRows(r.Chain), Stationary: r.Diag.Stationary,
 			Matched: r.Chain.Matched, Diagnostics: r.Diag, provenance: r.Provenance, Degenerate: r.Diag.Degenerate,
+			Advice: r.Advice,
 		}
 		if j.Stationary == nil {
 			j.StationaryReason = r.Diag.StationaryErr
@@ -158,7 +164,10 @@ func (r chainReport) printText(w io.Writer) error {
 		fmt.Fprintln(w, "\nwarning: degenerate chain: "+d.Degenerate)
 	}
 	if k := c.Fallbacks(); k > 0 {
-		fmt.Fprintf(w, "\nwarning: %d state(s) could not match all %d moments (the grid cannot carry them there); see the matched column\n", k, c.Moments)
+		fmt.Fprintf(w, "\nwarning: %d state(s) could not match all %d moments (proven infeasible on this grid there); see the matched column\n", k, c.Moments)
+		if r.Advice != "" {
+			fmt.Fprintln(w, "advice: "+r.Advice)
+		}
 	}
 	if r.Provenance != nil {
 		r.Provenance.printText(w)

@@ -50,6 +50,11 @@ func newAR1Cmd() *cobra.Command {
 			}
 			out := chainReport{Kind: "ar1", Process: ar1Params(p, shock), Chain: sol.Chain, Diag: sol.Diagnostics,
 				Baseline: sol.Baseline, BaselineDiag: sol.BaselineDiagnostics, Provenance: &prov}
+			if s.Method == solver.MaxEnt && !solver.Carries(sol.Chain) {
+				if adv, err := p.Advise(s, 0); err == nil {
+					out.Advice = adv.String()
+				}
+			}
 			return out.print(cmd.OutOrStdout(), ms.json)
 		},
 	}
