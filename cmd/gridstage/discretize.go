@@ -53,9 +53,14 @@ type methodSettings struct {
 func (m *methodSettings) register(cmd *cobra.Command, withMethod bool) {
 	fs := cmd.Flags()
 	fs.IntVar(&m.states, "states", 9, "number of grid points (2 to 10000)")
-	fs.IntVar(&m.moments, "moments", 0, "conditional moments to match exactly with maxent (default 4, fewer for heavy-tailed innovations)")
 	fs.StringVar(&m.nodes, "nodes", "", nodesHelp)
-	fs.Float64Var(&m.width, "width", 0, "half-width of lattice, gauss-legendre and tauchen grids in unconditional s.d. (default sqrt(states-1); 3 for tauchen)")
+	if withMethod {
+		fs.IntVar(&m.moments, "moments", 0, "conditional moments to match exactly with maxent (default 4, fewer for heavy-tailed innovations)")
+		fs.Float64Var(&m.width, "width", 0, "half-width of lattice, gauss-legendre and tauchen grids in unconditional s.d. (default sqrt(states-1); 3 for tauchen)")
+	} else {
+		fs.IntVar(&m.moments, "moments", 0, "moments to match exactly (default 4, fewer when the law lacks them)")
+		fs.Float64Var(&m.width, "width", 0, "half-width of lattice and gauss-legendre grids in s.d. of the law, clipped to its support (default sqrt(states-1))")
+	}
 	fs.BoolVar(&m.json, "json", false, "print one JSON object instead of tables")
 	if withMethod {
 		fs.StringVar(&m.method, "method", "maxent", "maxent, tauchen, tauchen-hussey, rouwenhorst or adda-cooper")

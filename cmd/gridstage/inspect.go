@@ -48,8 +48,8 @@ a folder holds several processes, name one with --process.
 Vector chains (kinds var, ar1-volatility, product) show every state's
 vector and the largest standardized errors of its conditional mean vector
 and covariance matrix, and the stationary means and covariances of chain
-and process. A
-life-cycle age shows the move from its grid to the next age's grid.`,
+and process. A life-cycle age shows the move from its grid to the next
+age's grid.`,
 		Args: cobra.ExactArgs(1),
 		RunE: func(cmd *cobra.Command, args []string) error {
 			sel := inspectSelection{point: -1, age: -1}

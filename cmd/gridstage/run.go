@@ -111,7 +111,7 @@ On a Slurm array job the share of jobs is taken from the array variables;
 	}
 	fs := cmd.Flags()
 	fs.StringVar(&out, "out", "", "output folder (default: the manifest's output folder)")
-	fs.StringVar(&format, "format", "parquet", "output format: parquet or arrow (default: the manifest's)")
+	fs.StringVar(&format, "format", "", "output format: parquet or arrow (default: the manifest's, else parquet)")
 	fs.IntVar(&workers, "workers", 0, "jobs solved at once (default: every core)")
 	fs.StringVar(&cacheDir, "cache", "", "cache folder, or off (default: $GRIDSTAGE_CACHE, else the user cache folder)")
 	fs.StringVar(&shardFlag, "shard", "", "run share I of N of the jobs, as I/N (default: from Slurm array variables, else all)")

@@ -31,9 +31,14 @@ type varFlags struct {
 }
 
 func (f *varFlags) register(fs *pflag.FlagSet) {
-	fs.Float64SliceVar(&f.coef, "coef", nil, "coefficient matrix, row-major, d*d entries for d from 1 to 4 (required)")
-	fs.Float64SliceVar(&f.cov, "cov", nil, "innovation covariance matrix, row-major, d*d entries, symmetric positive definite (required)")
-	fs.Float64SliceVar(&f.intercept, "intercept", nil, "intercept, d entries (default zeros)")
+	fs.Float64SliceVar(&f.coef, "coef", nil, "coefficient matrix as a row-major `LIST` of d*d numbers, d from 1 to 4 (required)")
+	fs.Float64SliceVar(&f.cov, "cov", nil, "innovation covariance matrix as a row-major `LIST` of d*d numbers, symmetric positive definite (required)")
+	fs.Float64SliceVar(&f.intercept, "intercept", nil, "intercept as a `LIST` of d numbers (default zeros)")
+	for _, name := range []string{"coef", "cov", "intercept"} {
+		// An empty list is no default worth showing: help would print
+		// "(default [])" after the text above.
+		fs.Lookup(name).DefValue = ""
+	}
 }
 
 // process validates the flags and returns the VAR; every error names the
