@@ -3,6 +3,8 @@ package batch
 import (
 	"bufio"
 	"bytes"
+	"crypto/sha256"
+	"encoding/hex"
 	"encoding/json"
 	"fmt"
 	"io"
@@ -40,6 +42,8 @@ type FileRecord struct {
 	Table       string `json:"table"`
 	Rows        int64  `json:"rows"`
 	ContentHash string `json:"content_hash"`
+	// Bytes is the SHA-256 of the file's bytes (docs/HASHES.md).
+	Bytes string `json:"bytes_sha256"`
 }
 
 // RunRecord lists what a run did. It holds no times or cache statistics, so
@@ -56,6 +60,10 @@ type RunRecord struct {
 	Succeeded bool         `json:"succeeded"`
 	Jobs      []JobRecord  `json:"jobs"`
 	Files     []FileRecord `json:"files"`
+	// RecordHash is the SHA-256 of run.json's bytes before the field itself
+	// (docs/HASHES.md, "Record hash"); ReadRecord checks it. WriteRecord
+	// sets it.
+	RecordHash string `json:"record_hash"`
 }
 
 // Params are a job's swept values, sorted by name. They are kept as a slice
@@ -113,7 +121,7 @@ func FileRecords(sets []formats.Result) []FileRecord {
 	var out []FileRecord
 	for _, s := range sets {
 		for _, f := range s.Files {
-			out = append(out, FileRecord{Path: filepath.Base(f.Path), Table: f.Table, Rows: f.Rows, ContentHash: f.ContentHash})
+			out = append(out, FileRecord{Path: filepath.Base(f.Path), Table: f.Table, Rows: f.Rows, ContentHash: f.ContentHash, Bytes: f.Bytes})
 		}
 	}
 	return out
@@ -122,7 +130,8 @@ func FileRecords(sets []formats.Result) []FileRecord {
 // WriteRecord writes the record into dir atomically (temporary file, fsync,
 // rename), one job at a time, so that no record is held as one buffer. The
 // bytes are those of json.MarshalIndent(r, "", "  ") (with empty lists
-// written as [] even when nil).
+// written as [] even when nil), with r.RecordHash set to the hash of the
+// bytes before it.
 func WriteRecord(dir string, r *RunRecord) error {
 	return writeRecord(dir, r, func(w *bufio.Writer) error {
 		for i := range r.Jobs {
@@ -137,7 +146,9 @@ func WriteRecord(dir string, r *RunRecord) error {
 // writeRecord writes r's head and files, with the jobs list's elements
 // supplied by jobs (n of them).
 func writeRecord(dir string, r *RunRecord, jobs func(*bufio.Writer) error, n int) error {
-	return atomicfile.Write(filepath.Join(dir, RecordFile), 0o666, func(w io.Writer) error {
+	return atomicfile.Write(filepath.Join(dir, RecordFile), 0o666, func(f io.Writer) error {
+		sum := sha256.New()
+		w := io.MultiWriter(f, sum)
 		head, err := json.MarshalIndent(recordHead{r.Run, r.Manifest, r.ManifestHash, r.Tool, r.Numeric, r.Shard, r.Succeeded}, "", "  ")
 		if err != nil {
 			return err
@@ -156,9 +167,45 @@ func writeRecord(dir string, r *RunRecord, jobs func(*bufio.Writer) error, n int
 			}
 		}
 		closeList(bw, len(r.Files))
-		bw.WriteString("\n}\n")
-		return bw.Flush()
+		if err := bw.Flush(); err != nil {
+			return err
+		}
+		r.RecordHash = hex.EncodeToString(sum.Sum(nil))
+		_, err = io.WriteString(f, recordHashLead+r.RecordHash+recordHashTail)
+		return err
 	})
+}
+
+// run.json ends with its record hash: the SHA-256 of every byte before
+// recordHashLead.
+const (
+	recordHashLead = ",\n  \"record_hash\": \""
+	recordHashTail = "\"\n}\n"
+)
+
+// checkRecordHash checks the record hash at the end of run.json's bytes.
+func checkRecordHash(b []byte) error {
+	if !bytes.HasSuffix(b, []byte(recordHashTail)) {
+		return fmt.Errorf("it does not end with its record hash (truncated, edited, or written by an older gridstage)")
+	}
+	i := bytes.LastIndex(b, []byte(recordHashLead))
+	if i < 0 {
+		return fmt.Errorf("it has no record hash (edited, or written by an older gridstage)")
+	}
+	got := b[i+len(recordHashLead) : len(b)-len(recordHashTail)]
+	sum := sha256.Sum256(b[:i])
+	if want := hex.EncodeToString(sum[:]); string(got) != want {
+		return fmt.Errorf("its bytes hash to %s but its record_hash says %s: it changed after the run wrote it", want[:16], shorten(string(got), 64))
+	}
+	return nil
+}
+
+// shorten cuts s to at most n bytes for an error message, marking the cut.
+func shorten(s string, n int) string {
+	if len(s) <= n {
+		return fmt.Sprintf("%q", s)
+	}
+	return fmt.Sprintf("%q… (%d bytes)", s[:n], len(s))
 }
 
 // writeElement writes element i of a list as json.MarshalIndent would
@@ -239,15 +286,42 @@ type recordHead struct {
 	Succeeded    bool   `json:"succeeded"`
 }
 
-// ReadRecord reads the run record in dir.
+// RecordDamagedError reports a run.json that cannot be trusted: unreadable
+// as JSON, or changed since the run wrote it (its record hash differs).
+type RecordDamagedError struct {
+	Path    string
+	Problem string
+}
+
+func (e *RecordDamagedError) Error() string { return e.Path + " is damaged: " + e.Problem }
+
+// ReadRecord reads the run record in dir and checks its record hash. The
+// error is a *RecordDamagedError when the file exists but cannot be
+// trusted, and wraps fs.ErrNotExist when there is none.
 func ReadRecord(dir string) (*RunRecord, error) {
-	b, err := os.ReadFile(filepath.Join(dir, RecordFile))
+	path := filepath.Join(dir, RecordFile)
+	fi, err := os.Stat(path)
 	if err != nil {
 		return nil, err
 	}
+	if !fi.Mode().IsRegular() {
+		return nil, &RecordDamagedError{Path: path, Problem: "it is not a regular file"}
+	}
+	b, err := os.ReadFile(path)
+	if err != nil {
+		return nil, err
+	}
+	return parseRecord(path, b)
+}
+
+// parseRecord checks and decodes the bytes of a run record.
+func parseRecord(path string, b []byte) (*RunRecord, error) {
+	if err := checkRecordHash(b); err != nil {
+		return nil, &RecordDamagedError{Path: path, Problem: err.Error()}
+	}
 	var r RunRecord
 	if err := json.Unmarshal(b, &r); err != nil {
-		return nil, fmt.Errorf("batch: %s: %w", filepath.Join(dir, RecordFile), err)
+		return nil, &RecordDamagedError{Path: path, Problem: "not valid JSON: " + err.Error()}
 	}
 	return &r, nil
 }

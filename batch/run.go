@@ -2,8 +2,12 @@ package batch
 
 import (
 	"context"
+	"crypto/sha256"
+	"encoding/hex"
 	"errors"
 	"fmt"
+	"io"
+	"io/fs"
 	"log/slog"
 	"os"
 	"path/filepath"
@@ -55,6 +59,10 @@ type Result struct {
 	// Jobs counts the jobs of the run (of its shard) and FallbackJobs those
 	// with states that matched fewer moments than requested.
 	Jobs, FallbackJobs int
+	// Stale, when not empty, says why output of the same manifest already
+	// in the folder was not taken as up to date (a file changed, the
+	// record is damaged) and the run solved again.
+	Stale string
 }
 
 // solved is a job's result as it travels from a worker to the writer.
@@ -92,9 +100,11 @@ func Run(ctx context.Context, m *manifests.Manifest, opt Options) (*Result, erro
 		sh = shard.All
 	}
 	jobs := sh.Jobs(len(m.Jobs))
+	staleReason := ""
 	if !opt.Force {
-		if rec := upToDate(dir, m, sh, format); rec != nil {
-			log.Info("output is up to date; nothing to do (use --force to rewrite it)", "folder", dir)
+		rec, stale := upToDate(dir, m, sh, format)
+		if rec != nil {
+			log.Info("output is up to date (every file's bytes checked against run.json); nothing to do (use --force to rewrite it)", "folder", dir)
 			res := &Result{Dir: dir, Record: rec, UpToDate: true, Jobs: len(rec.Jobs)}
 			for _, j := range rec.Jobs {
 				if j.Fallbacks > 0 {
@@ -104,10 +114,21 @@ func Run(ctx context.Context, m *manifests.Manifest, opt Options) (*Result, erro
 			rec.Jobs = nil
 			return res, nil
 		}
+		if stale != "" {
+			log.Warn("the output of this manifest is not intact; solving again", "folder", dir, "reason", stale)
+			staleReason = stale
+		}
+	}
+	// The folder's previous record goes first: from here until the new
+	// record is written the folder has none, so sets renamed in by this run
+	// beside those of an earlier one are never vouched for by either's
+	// record (verify refuses a folder without one).
+	if err := removeRecord(dir); err != nil {
+		return nil, fmt.Errorf("batch: output folder %s: %w", dir, err)
 	}
 	// The record's job list streams to a temporary file as jobs finish, so
 	// memory does not grow with the number of jobs; Record.Jobs stays nil.
-	res := &Result{Dir: dir, Jobs: len(jobs), Record: &RunRecord{
+	res := &Result{Dir: dir, Jobs: len(jobs), Stale: staleReason, Record: &RunRecord{
 		Run: m.Run, Manifest: m.File, ManifestHash: m.Hash, Tool: version.Tool, Numeric: version.Numeric, Shard: sh.String(),
 	}}
 	jobLog, err := newJobLog(dir)
@@ -236,28 +257,75 @@ func paramMap(ps []manifests.Param) map[string]float64 {
 
 // upToDate returns the run record in dir when the folder already holds the
 // complete, successful output of this manifest and shard written by this
-// version of the tool in this format, every file it lists still present.
-// The manifest hash covers every job's spec hash, and the spec hash the
-// solver's numeric version, so equal hashes mean equal numbers. It does
-// not re-read the files: `gridstage verify` checks their contents.
-func upToDate(dir string, m *manifests.Manifest, sh shard.Shard, f formats.Format) *RunRecord {
+// version of the tool in this format, every file it lists still there
+// with the very bytes the run wrote (SHA-256 against the record's byte
+// digests; the record's own hash is checked by ReadRecord). The manifest
+// hash covers every job's spec hash, and the spec hash the solver's
+// numeric version, so equal hashes mean equal numbers. When the folder
+// holds this manifest's output but something in it changed, it returns
+// nil and a reason.
+func upToDate(dir string, m *manifests.Manifest, sh shard.Shard, f formats.Format) (*RunRecord, string) {
 	rec, err := ReadRecord(dir)
+	var damaged *RecordDamagedError
+	if errors.As(err, &damaged) {
+		return nil, damaged.Error()
+	}
 	if err != nil || !rec.Succeeded || rec.ManifestHash != m.Hash || rec.Tool != version.Tool || rec.Numeric != version.Numeric ||
 		rec.Shard != sh.String() || len(rec.Files) == 0 {
-		return nil
+		return nil, ""
 	}
 	for _, file := range rec.Files {
 		if filepath.Ext(file.Path) != f.Ext() {
-			return nil
+			return nil, ""
 		}
-		if _, err := os.Stat(filepath.Join(dir, file.Path)); err != nil {
-			return nil
+		path := filepath.Join(dir, file.Path)
+		got, err := bytesDigest(path)
+		if err != nil {
+			return nil, fmt.Sprintf("%s cannot be read: %v", path, err)
+		}
+		if got != file.Bytes {
+			return nil, fmt.Sprintf("%s changed since the run wrote it (its SHA-256 differs from the one in %s)", path, RecordFile)
 		}
 	}
 	if !sh.Whole() {
 		if _, _, err := shard.ReadStamp(dir); err != nil {
-			return nil
+			return nil, ""
 		}
 	}
-	return rec
+	return rec, ""
+}
+
+// bytesDigest returns the SHA-256 of a regular file's bytes, in hex.
+func bytesDigest(path string) (string, error) {
+	f, err := os.Open(path)
+	if err != nil {
+		return "", err
+	}
+	defer f.Close()
+	if fi, err := f.Stat(); err != nil || !fi.Mode().IsRegular() {
+		return "", fmt.Errorf("not a regular file")
+	}
+	h := sha256.New()
+	if _, err := io.Copy(h, f); err != nil {
+		return "", err
+	}
+	return hex.EncodeToString(h.Sum(nil)), nil
+}
+
+// removeRecord removes the run record in dir, if any, and syncs the folder
+// so that the removal survives a crash before the first set is renamed in.
+func removeRecord(dir string) error {
+	err := os.Remove(filepath.Join(dir, RecordFile))
+	if errors.Is(err, fs.ErrNotExist) {
+		return nil
+	}
+	if err != nil {
+		return err
+	}
+	d, err := os.Open(dir)
+	if err != nil {
+		return err
+	}
+	defer d.Close()
+	return d.Sync()
 }

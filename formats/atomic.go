@@ -1,7 +1,10 @@
 package formats
 
 import (
+	"crypto/sha256"
+	"encoding/hex"
 	"fmt"
+	"hash"
 	"os"
 	"path/filepath"
 
@@ -15,7 +18,19 @@ import (
 type tempFile struct {
 	*os.File
 	final string
+	// bytes hashes everything written, for the file's byte digest.
+	bytes hash.Hash
 }
+
+// Write writes to the file and to its byte digest.
+func (t *tempFile) Write(b []byte) (int, error) {
+	n, err := t.File.Write(b)
+	t.bytes.Write(b[:n])
+	return n, err
+}
+
+// digest returns the SHA-256 of the bytes written, in hex.
+func (t *tempFile) digest() string { return hex.EncodeToString(t.bytes.Sum(nil)) }
 
 func createTemp(final string) (*tempFile, error) {
 	dir, base := filepath.Split(final)
@@ -26,7 +41,7 @@ func createTemp(final string) (*tempFile, error) {
 	if err != nil {
 		return nil, fmt.Errorf("formats: create %s: %w", final, err)
 	}
-	return &tempFile{File: f, final: final}, nil
+	return &tempFile{File: f, final: final, bytes: sha256.New()}, nil
 }
 
 // finish makes the file readable by others, flushes it to stable storage

@@ -29,6 +29,8 @@ type sink interface {
 	finish(meta map[string]string) error
 	// commit renames the finished file into place.
 	commit() error
+	// digest is the SHA-256 of the finished file's bytes, in hex.
+	digest() string
 	// discard removes every temporary file.
 	discard()
 }
@@ -106,6 +108,8 @@ func (s *parquetSink) finish(meta map[string]string) error {
 }
 
 func (s *parquetSink) commit() error { return s.tmp.commit() }
+
+func (s *parquetSink) digest() string { return s.tmp.digest() }
 
 func (s *parquetSink) discard() {
 	s.fw.Close()
@@ -207,6 +211,8 @@ func (s *arrowSink) finish(meta map[string]string) error {
 }
 
 func (s *arrowSink) commit() error { return s.out.commit() }
+
+func (s *arrowSink) digest() string { return s.out.digest() }
 
 func (s *arrowSink) discard() {
 	s.spill.discard()

@@ -1,6 +1,8 @@
 package formats
 
 import (
+	"crypto/sha256"
+	"encoding/hex"
 	"errors"
 	"fmt"
 	"io"
@@ -41,6 +43,25 @@ type Report struct {
 	// Warnings are findings that do not make the output wrong, such as
 	// temporary files left by an interrupted write.
 	Warnings []string
+	// SetPoints lists, for each set checked in a folder, its header and
+	// every point with its hashes and swept values, so that a caller can
+	// check them against a run record.
+	SetPoints []SetPoints
+}
+
+// SetPoints is what a verified set holds: its header (run, process,
+// manifest hash) and its points.
+type SetPoints struct {
+	Ref    SetRef
+	Header Header
+	Points []VerifiedPoint
+}
+
+// VerifiedPoint is one point of a verified set.
+type VerifiedPoint struct {
+	PointHash
+	// Params are the swept values, by name.
+	Params map[string]float64
 }
 
 // Verify checks a gridstage file or an output folder: every file's
@@ -154,11 +175,17 @@ func verifySet(ref SetRef, mem memory.Allocator, rep *Report) error {
 		return err
 	}
 	defer r.Close()
+	sp := SetPoints{Ref: ref, Header: r.Header}
 	for {
-		if _, err := r.Next(); err == io.EOF {
+		rec, err := r.Next()
+		if err == io.EOF {
+			rep.SetPoints = append(rep.SetPoints, sp)
 			return nil
 		} else if err != nil {
 			return err
+		}
+		if n := len(sp.Points); n == 0 || sp.Points[n-1].Point != rec.Point {
+			sp.Points = append(sp.Points, VerifiedPoint{PointHash: PointHash{Point: rec.Point, SpecHash: rec.SpecHash, ChainHash: r.point.chainHash}, Params: rec.Params})
 		}
 	}
 }
@@ -201,7 +228,20 @@ func verifyFile(path string, mem memory.Allocator) (File, *fileMeta, error) {
 		return File{}, nil, &MismatchError{Path: path, Point: -1, Age: -1, Row: -1,
 			Problem: fmt.Sprintf("content hash recomputed from the values is %s, the metadata says %s: the numbers changed after the file was written", got, m.contentHash)}
 	}
-	return File{Table: m.table, Path: path, Rows: rows, ContentHash: m.contentHash}, m, nil
+	digest, err := fileDigest(tf.f)
+	if err != nil {
+		return File{}, nil, &DamagedError{Path: path, Err: err}
+	}
+	return File{Table: m.table, Path: path, Rows: rows, ContentHash: m.contentHash, Bytes: digest}, m, nil
+}
+
+// fileDigest returns the SHA-256 of all of f's bytes, in hex.
+func fileDigest(f *os.File) (string, error) {
+	h := sha256.New()
+	if _, err := io.Copy(h, io.NewSectionReader(f, 0, 1<<62)); err != nil {
+		return "", err
+	}
+	return hex.EncodeToString(h.Sum(nil)), nil
 }
 
 // rowChecker checks row order and values within one file.

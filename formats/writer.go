@@ -38,6 +38,10 @@ type File struct {
 	Path        string
 	Rows        int64
 	ContentHash string
+	// Bytes is the SHA-256 of the file's bytes, in hex (docs/HASHES.md,
+	// "Byte digest"): unlike the content hash it changes when the file is
+	// re-encoded or anything in it besides the values changes.
+	Bytes string
 }
 
 // PointHash gives the hashes of one written sweep point.
@@ -381,7 +385,7 @@ func (w *Writer) close() (Result, error) {
 		if err := w.sinks[i].finish(meta); err != nil {
 			return Result{}, err
 		}
-		res.Files = append(res.Files, File{Table: name, Rows: t.rows, ContentHash: meta[KeyContentHash],
+		res.Files = append(res.Files, File{Table: name, Rows: t.rows, ContentHash: meta[KeyContentHash], Bytes: w.sinks[i].digest(),
 			Path: filepath.Join(w.dir, FileName(w.h.Process, name, w.format()))})
 	}
 	for _, s := range w.sinks {

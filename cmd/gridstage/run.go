@@ -137,9 +137,12 @@ func cacheFolder(flag string) string {
 func printRunSummary(w io.Writer, m *manifests.Manifest, r *batch.Result, took time.Duration) {
 	jobs := r.Jobs
 	if r.UpToDate {
-		fmt.Fprintf(w, "run %q: %d jobs, output in %s is up to date (same manifest hash and tool version); --force rewrites it\n",
+		fmt.Fprintf(w, "run %q: %d jobs, output in %s is up to date (same manifest hash and tool version, every file's bytes as recorded); --force rewrites it\n",
 			m.Run, jobs, r.Dir)
 		return
+	}
+	if r.Stale != "" {
+		fmt.Fprintf(w, "note: the output already in %s was not intact (%s); solving again\n", r.Dir, r.Stale)
 	}
 	fmt.Fprintf(w, "run %q: %d jobs (%d solved, %d from cache, %d failed) in %s, shard %s\n",
 		m.Run, jobs, r.Solved, r.Cached, r.Failed, took.Round(time.Millisecond), r.Record.Shard)

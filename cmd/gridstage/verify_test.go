@@ -6,6 +6,7 @@ import (
 	"strings"
 	"testing"
 
+	"gridstage/batch"
 	"gridstage/formats"
 	"gridstage/internal/version"
 	"gridstage/solver"
@@ -26,7 +27,18 @@ func writeOutput(t *testing.T, f formats.Format) string {
 		set.Records = append(set.Records, formats.Record{Point: i, Params: map[string]float64{"rho": rho},
 			SpecHash: version.SpecHash(version.Numeric, []byte(`{"rho":`+[]string{"0.8", "0.9"}[i]+`}`)), Spec: []byte(`{"rho":` + []string{"0.8", "0.9"}[i] + `}`), Chain: c, Diag: solver.Diagnose(c, p)})
 	}
-	if _, err := formats.Write(dir, set, formats.Options{Format: f}); err != nil {
+	res, err := formats.Write(dir, set, formats.Options{Format: f})
+	if err != nil {
+		t.Fatal(err)
+	}
+	// The run record a run would write beside the set.
+	rec := &batch.RunRecord{Run: "wage-test", Manifest: "wage-test.yaml", Tool: "test", Shard: "1/1", Succeeded: true,
+		Files: batch.FileRecords([]formats.Result{res})}
+	for i, p := range res.Points {
+		rec.Jobs = append(rec.Jobs, batch.JobRecord{Index: i, Process: "wages", Point: p.Point, SpecHash: p.SpecHash, ChainHash: p.ChainHash,
+			Params: batch.Params{{Name: "rho", Value: set.Records[i].Params["rho"]}}, Status: "done"})
+	}
+	if err := batch.WriteRecord(dir, rec); err != nil {
 		t.Fatal(err)
 	}
 	return dir
