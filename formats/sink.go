@@ -64,7 +64,18 @@ func newParquetSink(final string, schema *arrow.Schema, mem memory.Allocator) (*
 		return nil, err
 	}
 	s := &parquetSink{tmp: tmp, buf: bufio.NewWriterSize(tmp, 1<<20)}
-	props := parquet.NewWriterProperties(
+	props := parquetProps(mem)
+	s.fw, err = pqarrow.NewFileWriter(schema, plainWriter{s.buf}, props, pqarrow.NewArrowWriterProperties(pqarrow.WithAllocator(mem)))
+	if err != nil {
+		tmp.discard()
+		return nil, fmt.Errorf("formats: %s: %w", final, err)
+	}
+	return s, nil
+}
+
+// parquetProps are the writer settings of every gridstage Parquet file.
+func parquetProps(mem memory.Allocator) *parquet.WriterProperties {
+	return parquet.NewWriterProperties(
 		parquet.WithCreatedBy(CreatedBy),
 		parquet.WithCompression(compress.Codecs.Zstd),
 		parquet.WithAllocator(mem),
@@ -77,12 +88,6 @@ func newParquetSink(final string, schema *arrow.Schema, mem memory.Allocator) (*
 		// write 40% faster and 20% smaller with zstd alone).
 		parquet.WithDictionaryDefault(false),
 	)
-	s.fw, err = pqarrow.NewFileWriter(schema, plainWriter{s.buf}, props, pqarrow.NewArrowWriterProperties(pqarrow.WithAllocator(mem)))
-	if err != nil {
-		tmp.discard()
-		return nil, fmt.Errorf("formats: %s: %w", final, err)
-	}
-	return s, nil
 }
 
 func (s *parquetSink) write(rec arrow.RecordBatch) error {

@@ -15,6 +15,8 @@ import (
 	"github.com/apache/arrow-go/v18/arrow/memory"
 	"github.com/apache/arrow-go/v18/parquet/file"
 	"github.com/apache/arrow-go/v18/parquet/pqarrow"
+
+	"gridstage/internal/pqcheck"
 )
 
 // NotOutputError reports a path that is not gridstage output at all (as
@@ -62,7 +64,13 @@ type tableFile struct {
 	schema *arrow.Schema
 	f      *os.File
 
+	// canonical: the file claims to be gridstage's own encoding (every
+	// Arrow IPC file; a Parquet file whose created_by is CreatedBy), which
+	// verify checks by re-encoding its values.
+	canonical bool
+
 	// Parquet
+	pq *file.Reader
 	rr pqarrow.RecordReader
 	// Arrow IPC
 	ipcr *ipc.FileReader
@@ -81,8 +89,12 @@ func hasGridstageKeys(raw map[string]string) bool {
 	return false
 }
 
-// readBatchRows is the batch size used when reading Parquet.
-const readBatchRows = 1 << 16
+// readBatchRows is the batch size used when reading Parquet whose row
+// groups are empty or larger than maxBatchRows.
+const (
+	readBatchRows = 1 << 16
+	maxBatchRows  = 1 << 20
+)
 
 // openTable opens a table file of either format and checks its metadata
 // and columns. A file not named like gridstage output that cannot be read
@@ -110,6 +122,7 @@ func openTable(path string, mem memory.Allocator) (*tableFile, error) {
 		return nil, &NotOutputError{Path: path, Reason: "neither a Parquet nor an Arrow IPC file"}
 	}
 	t.format = format
+	t.canonical = format == Arrow
 	var raw map[string]string
 	err = guard(func() error {
 		var err error
@@ -140,6 +153,13 @@ func openTable(path string, mem memory.Allocator) (*tableFile, error) {
 	if err := sameColumns(t.schema, want); err != nil {
 		t.close()
 		return nil, &DamagedError{Path: path, Err: fmt.Errorf("%s table %v", t.meta.table, err)}
+	}
+	if t.pq != nil && !t.canonical {
+		// Another writer's Parquet: check what standard readers rely on.
+		if err := guard(func() error { return pqcheck.Check(t.pq, t.f, fi.Size(), want) }); err != nil {
+			t.close()
+			return nil, &DamagedError{Path: path, Err: err}
+		}
 	}
 	t.schema = want
 	return t, nil
@@ -204,7 +224,18 @@ func (t *tableFile) open(mem memory.Allocator) (map[string]string, error) {
 			raw[kv.Key] = *kv.Value
 		}
 	}
-	fr, err := pqarrow.NewFileReader(pr, pqarrow.ArrowReadProperties{BatchSize: readBatchRows}, mem)
+	t.canonical = isOwnParquet(pr.MetaData().GetCreatedBy())
+	// Batches of one row group each (gridstage writes row groups of equal
+	// size but the last), so that re-encoding them gives the file's own
+	// row groups.
+	batch := int64(readBatchRows)
+	if pr.NumRowGroups() > 0 {
+		if n := pr.MetaData().RowGroup(0).NumRows(); n > 0 && n <= maxBatchRows {
+			batch = n
+		}
+	}
+	t.pq = pr
+	fr, err := pqarrow.NewFileReader(pr, pqarrow.ArrowReadProperties{BatchSize: batch}, mem)
 	if err != nil {
 		return nil, err
 	}

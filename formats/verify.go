@@ -200,6 +200,13 @@ func verifyFile(path string, mem memory.Allocator) (File, *fileMeta, error) {
 	m := tf.meta
 	h := newContentHasher(m.table, tf.schema)
 	check := newRowChecker(path, m)
+	var enc *canonicalEncoder
+	if tf.canonical {
+		if enc, err = newCanonicalEncoder(tf, mem); err != nil {
+			return File{}, nil, &DamagedError{Path: path, Err: err}
+		}
+		defer enc.close()
+	}
 	var rows int64
 	for {
 		rec, err := tf.batch()
@@ -208,6 +215,9 @@ func verifyFile(path string, mem memory.Allocator) (File, *fileMeta, error) {
 		}
 		if err != nil {
 			return File{}, nil, err
+		}
+		if enc != nil {
+			enc.add(rec)
 		}
 		if err := guard(func() error { return check.batch(rec, rows) }); err != nil {
 			return File{}, nil, err
@@ -232,7 +242,28 @@ func verifyFile(path string, mem memory.Allocator) (File, *fileMeta, error) {
 	if err != nil {
 		return File{}, nil, &DamagedError{Path: path, Err: err}
 	}
+	if enc != nil {
+		want, err := enc.sum()
+		if err != nil {
+			return File{}, nil, &DamagedError{Path: path, Err: err}
+		}
+		if want != digest {
+			return File{}, nil, &StructureError{Path: path, Format: tf.format}
+		}
+	}
 	return File{Table: m.table, Path: path, Rows: rows, ContentHash: m.contentHash, Bytes: digest}, m, nil
+}
+
+// StructureError reports a file whose values check but whose bytes are not
+// gridstage's encoding of them: its footer, page or message headers, types
+// or padding were altered, so other readers may read it differently.
+type StructureError struct {
+	Path   string
+	Format Format
+}
+
+func (e *StructureError) Error() string {
+	return fmt.Sprintf("%s: its values check, but its bytes are not gridstage's %s encoding of them: the file's structure (footer, headers, types) was altered, so other readers may not read these values", e.Path, e.Format)
 }
 
 // fileDigest returns the SHA-256 of all of f's bytes, in hex.

@@ -80,7 +80,10 @@ func Read(path string) ([]Record, error) {
 func read(f parquet.ReaderAtSeeker, path string) (recs []Record, err error) {
 	defer func() { // the Parquet reader panics on some damaged files
 		if r := recover(); r != nil {
-			recs, err = nil, fmt.Errorf("lineage: %s is not a readable ledger: %v", path, r)
+			recs, err = nil, fmt.Errorf("lineage: %s is damaged: the Parquet reader failed on it", path)
+			if os.Getenv("GRIDSTAGE_DEBUG") != "" {
+				err = fmt.Errorf("%w (%v)", err, r)
+			}
 		}
 	}()
 	pf, err := file.NewParquetReader(f)
@@ -139,6 +142,9 @@ func read(f parquet.ReaderAtSeeker, path string) (recs []Record, err error) {
 	}
 	if err := tr.Err(); err != nil && !errors.Is(err, io.EOF) {
 		return nil, fmt.Errorf("lineage: %s: %w", path, err)
+	}
+	if err := checkStructure(f, pf, recs); err != nil {
+		return nil, fmt.Errorf("lineage: %s is damaged: %w", path, err)
 	}
 	return recs, nil
 }
