@@ -18,7 +18,7 @@ import (
 // kindsManifest holds one process of each kind the VAR, stochastic
 // volatility, life-cycle and product work added, in invented scenarios: a
 // made-up firm panel's productivity and demand (VAR), a fictional
-// commodity price with volatility regimes (sv), an earnings profile over
+// commodity price with volatility regimes (ar1-volatility), an earnings profile over
 // five ages (lifecycle, persistence and variance changing with age, mixture
 // innovations at one age), and a persistent wage component times a
 // transitory one (product). The var process is swept over one coefficient.
@@ -188,9 +188,10 @@ func TestRunVAR(t *testing.T) {
 	}
 }
 
-// TestRunSV checks the sv process against solver.SV.Discretize: 9 level
-// states (2 moments, half-width √8) times 3 Rouwenhorst log-variance states.
-func TestRunSV(t *testing.T) {
+// TestRunAR1Volatility checks the ar1-volatility process against
+// solver.SV.Discretize: 9 level states (2 moments, half-width √8) times 3
+// Rouwenhorst log-variance states.
+func TestRunAR1Volatility(t *testing.T) {
 	dir := runKinds(t, Options{})
 	set := readSet(t, dir, "price", formats.Parquet)
 	p := solver.SV{Mean: 1, Rho: 0.9, LogVar: solver.AR1{Mean: -4, Rho: 0.8, Sigma: 0.2}}
@@ -201,8 +202,8 @@ func TestRunSV(t *testing.T) {
 	if set.Dim != 2 || len(set.Records) != 1 || set.Records[0].Chain.States() != 27 {
 		t.Fatalf("header %+v, %d records", set.Header, len(set.Records))
 	}
-	sameChain(t, "sv", set.Records[0].Chain, c)
-	checkVector(t, "sv", set.Records[0].Vector, c, p)
+	sameChain(t, "ar1-volatility", set.Records[0].Chain, c)
+	checkVector(t, "ar1-volatility", set.Records[0].Vector, c, p)
 }
 
 // TestRunProduct checks the product against solver.Product of the

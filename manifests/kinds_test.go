@@ -118,12 +118,12 @@ func TestBuildNewKinds(t *testing.T) {
 	}
 
 	s := mustBuild(t, m.Jobs[1])
-	sv, ok := s.Model.(volatilityModel)
-	if !ok || sv.Vol != (solver.Settings{States: 3, Method: solver.Tauchen}) || sv.LogVar != (solver.AR1{Mean: -4, Rho: 0.8, Sigma: 0.2}) || sv.Mean != 1 {
-		t.Errorf("sv model %+v", s.Model)
+	vm, ok := s.Model.(volatilityModel)
+	if !ok || vm.Vol != (solver.Settings{States: 3, Method: solver.Tauchen}) || vm.LogVar != (solver.AR1{Mean: -4, Rho: 0.8, Sigma: 0.2}) || vm.Mean != 1 {
+		t.Errorf("ar1-volatility model %+v", s.Model)
 	}
 	if want := (solver.Settings{States: 6, Method: solver.Tauchen, Width: 3}); s.Settings != want || s.Baseline.Method != solver.MaxEnt {
-		t.Errorf("sv settings %+v, baseline %+v", s.Settings, s.Baseline)
+		t.Errorf("ar1-volatility settings %+v, baseline %+v", s.Settings, s.Baseline)
 	}
 
 	l := mustBuild(t, m.Jobs[2])

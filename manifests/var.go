@@ -33,7 +33,7 @@ func (v *varSpec) decode(m *mapping) {
 	v.cov, v.covBad = m.matrix("cov")
 	v.intercept, v.interceptBad = m.numberList("intercept", interceptWant)
 	v.interceptGiven = m.has("intercept")
-	v.axes = m.choice("axes", solver.GridAxesNames())
+	v.axes = m.choice("axes", solver.AxesNames())
 	if !v.interceptGiven && v.coef != nil {
 		// Zeros, so that intercept[k] can be swept without writing them.
 		at := m.d.at(m.node, m.field("intercept"))
@@ -202,7 +202,7 @@ func perAxisLimit(d int) int {
 
 func (v *varSpec) settings(s *solver.Settings) {
 	if s.Method == solver.MaxEnt && v.axes.set {
-		s.Axes, _ = solver.ParseGridAxes(v.axes.v)
+		s.Axes, _ = solver.ParseAxes(v.axes.v)
 	}
 }
 

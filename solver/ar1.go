@@ -39,7 +39,7 @@ type Settings struct {
 	Floden bool
 	// Axes orients the tensor grid of vector processes (VAR); the zero value
 	// is AxesPrincipal. Univariate processes ignore it.
-	Axes GridAxes
+	Axes Axes
 }
 
 // StationarySD returns σ/√(1−ρ²), the unconditional standard deviation.

@@ -168,7 +168,7 @@ func TestFallbacksAgainstLP(t *testing.T) {
 	for _, v := range vars {
 		for _, n := range v.ns {
 			for _, L := range []int{1, 2, 4} {
-				for _, axes := range []GridAxes{AxesPrincipal, AxesCoordinate} {
+				for _, axes := range []Axes{AxesPrincipal, AxesCoordinate} {
 					for _, g := range []NodeRule{NodesLattice, NodesGaussHermite} {
 						s := Settings{States: n, Moments: L, Axes: axes, Nodes: g}
 						c, err := v.p.Discretize(s)

@@ -7,47 +7,48 @@ import (
 	"gonum.org/v1/gonum/mat"
 )
 
-// GridAxes names the orientation of a tensor grid for a vector process.
-type GridAxes int
+// Axes names the orientation of a tensor grid for a vector process (the
+// manifest key axes).
+type Axes int
 
 const (
 	// AxesPrincipal lays the grid along the eigenvectors of the stationary
 	// covariance Σ, scaled by the square roots of its eigenvalues, so the N^d
 	// points cover the ergodic set of a correlated process evenly.
-	AxesPrincipal GridAxes = iota
+	AxesPrincipal Axes = iota
 	// AxesCoordinate lays the grid along the coordinate axes, scaled by the
 	// stationary standard deviation of each component.
 	AxesCoordinate
 )
 
-var gridAxesNames = [...]string{"principal", "coordinate"}
+var axesNames = [...]string{"principal", "coordinate"}
 
-func (a GridAxes) String() string {
-	if int(a) >= 0 && int(a) < len(gridAxesNames) {
-		return gridAxesNames[a]
+func (a Axes) String() string {
+	if int(a) >= 0 && int(a) < len(axesNames) {
+		return axesNames[a]
 	}
-	return fmt.Sprintf("GridAxes(%d)", int(a))
+	return fmt.Sprintf("Axes(%d)", int(a))
 }
 
-// ParseGridAxes maps "principal" or "coordinate" to its GridAxes.
-func ParseGridAxes(s string) (GridAxes, error) {
-	for i, n := range gridAxesNames {
+// ParseAxes maps "principal" or "coordinate" to its Axes.
+func ParseAxes(s string) (Axes, error) {
+	for i, n := range axesNames {
 		if n == s {
-			return GridAxes(i), nil
+			return Axes(i), nil
 		}
 	}
-	return 0, fmt.Errorf("solver: unknown grid axes %q (want principal or coordinate)", s)
+	return 0, fmt.Errorf("solver: unknown axes %q (want principal or coordinate)", s)
 }
 
-// GridAxesNames lists the accepted grid-axes names.
-func GridAxesNames() []string { return append([]string(nil), gridAxesNames[:]...) }
+// AxesNames lists the accepted names of Axes.
+func AxesNames() []string { return append([]string(nil), axesNames[:]...) }
 
 // axisFrame returns the d×d matrix A (row-major) whose columns are the grid
 // axes: a grid point with standardized axis coordinates a is μ + A a.
 // Principal axes are the eigenvectors of sigma in order of decreasing
 // eigenvalue, each scaled by √λ and signed so that its largest entry is
 // positive (a deterministic choice, since eigenvectors are defined up to sign).
-func axisFrame(axes GridAxes, sigma []float64, d int) []float64 {
+func axisFrame(axes Axes, sigma []float64, d int) []float64 {
 	a := make([]float64, d*d)
 	switch axes {
 	case AxesCoordinate:

@@ -57,7 +57,7 @@ func TestWhyCasesAgainstLP(t *testing.T) {
 	// Was: states 1–3 matched the mean only (principal axes), and states 0
 	// and 24 (coordinate axes).
 	for _, v := range []struct {
-		axes GridAxes
+		axes Axes
 		want []int
 	}{
 		{AxesPrincipal, []int{1, 2, 2, 2, 1, 1, 2, 2, 2, 1, 1, 2, 2, 2, 1, 1, 2, 2, 2, 1, 1, 2, 2, 2, 1}},

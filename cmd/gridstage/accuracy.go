@@ -167,14 +167,14 @@ func newAccuracyVARCmd() *cobra.Command {
 			if err := axisStates(states, p.Dim()); err != nil {
 				return err
 			}
-			if err := choice("axes", axes, solver.GridAxesNames()); err != nil {
+			if err := choice("axes", axes, solver.AxesNames()); err != nil {
 				return err
 			}
 			cfg, ms, err := sf.config(methods)
 			if err != nil {
 				return err
 			}
-			ax, _ := solver.ParseGridAxes(axes)
+			ax, _ := solver.ParseAxes(axes)
 			var cands []accuracy.Candidate
 			for _, m := range ms {
 				c, err := p.Discretize(solver.Settings{States: states, Method: m, Axes: ax})

@@ -92,7 +92,7 @@ func (v *varSettings) settings(cmd *cobra.Command, d int) (solver.Settings, erro
 	if err := choice("method", v.method, []string{"maxent", "tauchen"}); err != nil {
 		return s, err
 	}
-	if err := choice("axes", v.axes, solver.GridAxesNames()); err != nil {
+	if err := choice("axes", v.axes, solver.AxesNames()); err != nil {
 		return s, err
 	}
 	nodes, err := nodeRule(v.nodes)
@@ -117,7 +117,7 @@ func (v *varSettings) settings(cmd *cobra.Command, d int) (solver.Settings, erro
 			return s, err
 		}
 	}
-	axes, _ := solver.ParseGridAxes(v.axes)
+	axes, _ := solver.ParseAxes(v.axes)
 	return solver.Settings{States: v.states, Method: method, Moments: v.moments, Nodes: nodes, Width: v.width, Axes: axes}, nil
 }
 
