@@ -83,8 +83,8 @@ func TestRunDeterministicAcrossWorkersAndCache(t *testing.T) {
 		}
 		outputs = append(outputs, readAll(t, opt.Out))
 	}
-	if len(outputs[0]) != 11 { // 5 tables × 2 processes + run.json
-		t.Errorf("%d files written, want 11", len(outputs[0]))
+	if len(outputs[0]) != 13 { // 6 tables × 2 processes + run.json
+		t.Errorf("%d files written, want 13", len(outputs[0]))
 	}
 	for k := 1; k < len(outputs); k++ {
 		for name, b := range outputs[0] {

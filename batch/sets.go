@@ -66,6 +66,9 @@ func records(job manifests.Job, sol manifests.Solution) []formats.Record {
 	if sol.Ages == nil {
 		r := base
 		r.Chain, r.Diag, r.Baseline = sol.Chain, sol.Diagnostics, sol.BaselineDiagnostics
+		if sol.Baseline != nil {
+			r.BaselineTransition = sol.Baseline.Transition
+		}
 		if sol.Vector != nil {
 			r.Vector = formats.NewVectorDiag(sol.Vector)
 		}
@@ -84,6 +87,7 @@ func records(job manifests.Job, sol manifests.Solution) []formats.Record {
 		}
 		if sol.BaselineAgeDiagnostics != nil {
 			r.Baseline = &sol.BaselineAgeDiagnostics[t]
+			r.BaselineTransition = sol.BaselineAges.Ages[t].Transition
 		}
 		out = append(out, r)
 	}

@@ -142,6 +142,34 @@ func TestVerifyFlippedProbability(t *testing.T) {
 	}
 }
 
+// TestVerifyBaselineTable changes the baseline method's matrices: a
+// probability moved out of its row is caught by the row check, a change
+// the row sum cannot see by the content hash, and in a folder both name
+// the baseline file.
+func TestVerifyBaselineTable(t *testing.T) {
+	for _, f := range []Format{Parquet, Arrow} {
+		t.Run(f.String(), func(t *testing.T) {
+			dir, res := writeSample(t, f)
+			path := res.Files[4].Path
+			if res.Files[4].Table != TableBaseline || res.Files[4].Rows != 2*25 {
+				t.Fatalf("file 4 is %s with %d rows, want the baseline table with 2 × 25 rows (points 0 and 2)", res.Files[4].Table, res.Files[4].Rows)
+			}
+			// Row 32 is the second baseline chain (point 2), from_state 1, to_state 2.
+			rewrite(t, path, setFloat(4, 32, func(p float64) float64 { return 1 - p }), nil)
+			_, err := Verify(path)
+			wantMismatch(t, err, filepath.Base(path), "point 2", "from_state 1", "sums to")
+			_, err = Verify(dir)
+			wantMismatch(t, err, filepath.Base(path), "point 2")
+
+			dir, res = writeSample(t, f)
+			path = res.Files[4].Path
+			rewrite(t, path, setFloat(4, 3, func(p float64) float64 { return p + 1e-15 }), nil)
+			_, err = Verify(dir)
+			wantMismatch(t, err, filepath.Base(path), "content hash")
+		})
+	}
+}
+
 // TestVerifyChangedValue changes numbers in ways row checks cannot see: the
 // content hash must catch them.
 func TestVerifyChangedValue(t *testing.T) {
@@ -287,7 +315,7 @@ func TestVerifyEveryByteNeverPanics(t *testing.T) {
 	}
 	for _, f := range []Format{Parquet, Arrow} {
 		_, res := writeSample(t, f)
-		path := res.Files[4].Path // points: strings, floats and the table hashes
+		path := res.Files[5].Path // points: strings, floats and the table hashes
 		full := readFile(t, path)
 		undetected := 0
 		for pos := 0; pos < len(full); pos += 3 {

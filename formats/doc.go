@@ -3,10 +3,11 @@
 // that any Arrow or Parquet reader can use without gridstage code.
 //
 // One Set — one process across the points of a sweep, each point possibly
-// with one chain per age — lands in five files in one folder:
+// with one chain per age — lands in six files in one folder:
 //
 //	<process>.points.<ext>       one row per sweep point: spec hash, chain hash, canonical spec, swept values
 //	<process>.transitions.<ext>  one row per (point, age, from_state, to_state): the probability
+//	<process>.baseline.<ext>     the same for the baseline method's chain, when the run compared one
 //	<process>.states.<ext>       one row per (point, age, state): grid levels, stationary and initial probability
 //	<process>.diagnostics.<ext>  one row per (point, age, chain, state): conditional moments and their errors
 //	<process>.summary.<ext>      one row per (point, age, chain): unconditional moments and worst errors

@@ -47,6 +47,7 @@ func ParseFormat(s string) (Format, error) {
 const (
 	TablePoints      = "points"
 	TableTransitions = "transitions"
+	TableBaseline    = "baseline"
 	TableStates      = "states"
 	TableDiagnostics = "diagnostics"
 	TableSummary     = "summary"
@@ -54,7 +55,7 @@ const (
 
 // Tables lists every table of a Set. The points table is last because it is
 // renamed into place last and records its siblings' content hashes.
-var Tables = []string{TableTransitions, TableStates, TableDiagnostics, TableSummary, TablePoints}
+var Tables = []string{TableTransitions, TableStates, TableDiagnostics, TableSummary, TableBaseline, TablePoints}
 
 // FileName returns the name of a set's table file: <process>.<table><ext>.
 func FileName(process, table string, f Format) string {

@@ -11,8 +11,9 @@ import (
 )
 
 // sampleAR1 discretizes a Gaussian AR(1) with maximum entropy and a
-// Rouwenhorst baseline, and diagnoses both.
-func sampleAR1(t testing.TB, rho, sigma float64, states int) (*solver.Chain, solver.Diagnostics, solver.Diagnostics) {
+// Rouwenhorst baseline, and diagnoses both; it returns the chain, its
+// diagnostics, the baseline's diagnostics and the baseline's matrix.
+func sampleAR1(t testing.TB, rho, sigma float64, states int) (*solver.Chain, solver.Diagnostics, solver.Diagnostics, []float64) {
 	t.Helper()
 	p := solver.AR1{Rho: rho, Sigma: sigma}
 	c, err := p.Discretize(solver.Settings{States: states})
@@ -23,7 +24,7 @@ func sampleAR1(t testing.TB, rho, sigma float64, states int) (*solver.Chain, sol
 	if err != nil {
 		t.Fatal(err)
 	}
-	return c, solver.Diagnose(c, p), solver.Diagnose(b, p)
+	return c, solver.Diagnose(c, p), solver.Diagnose(b, p), b.Transition
 }
 
 // sweepSet is a sweep over the persistence of an invented regional
@@ -38,11 +39,11 @@ func sweepSet(t testing.TB, points, ages, states int) *Set {
 		spec := fmt.Sprintf(`{"kind":"ar1","rho":%g,"sigma":0.1,"states":%d}`, rho, states)
 		for a := 0; a < ages; a++ {
 			sigma := 0.1 + 0.01*float64(a)
-			c, d, b := sampleAR1(t, rho, sigma, states)
+			c, d, b, bt := sampleAR1(t, rho, sigma, states)
 			r := Record{Point: p, Params: map[string]float64{"rho": rho, "sigma": 0.1}, Age: a,
 				SpecHash: specHash(spec), Spec: []byte(spec), Chain: c, Diag: d}
 			if p%2 == 0 {
-				r.Baseline = &b
+				r.Baseline, r.BaselineTransition = &b, bt
 			}
 			if a == 0 && ages > 1 {
 				r.Initial = append([]float64(nil), d.Stationary...)
@@ -58,8 +59,8 @@ func sweepSet(t testing.TB, points, ages, states int) *Set {
 // independent AR(1) chains (an invented firm's productivity and demand).
 func productSet(t testing.TB) *Set {
 	t.Helper()
-	a, _, _ := sampleAR1(t, 0.9, 0.1, 3)
-	b, _, _ := sampleAR1(t, 0.5, 0.2, 4)
+	a, _, _, _ := sampleAR1(t, 0.9, 0.1, 3)
+	b, _, _, _ := sampleAR1(t, 0.5, 0.2, 4)
 	na, nb := a.States(), b.States()
 	n := na * nb
 	c := &solver.Chain{Dim: 2, Method: solver.MaxEnt, Moments: 2, Matched: make([]int, n), Transition: make([]float64, n*n)}
@@ -164,6 +165,9 @@ func diffRecords(a, b *Record) string {
 		if d := diffDiag(a.Baseline, b.Baseline); d != "" {
 			return "baseline: " + d
 		}
+		if !sameBits(a.BaselineTransition, b.BaselineTransition) {
+			return "baseline transition"
+		}
 	}
 	if d := diffVector(a.Vector, b.Vector); d != "" {
 		return "vector: " + d
@@ -214,7 +218,7 @@ func vectorSet(t testing.TB) *Set {
 		vc, vb := solver.DiagnoseVector(c, p), solver.DiagnoseVector(b, p)
 		dc, db := solver.Diagnose(c, p), solver.Diagnose(b, p)
 		r := Record{Point: pt, Params: map[string]float64{"coef[0][0]": b00}, SpecHash: specHash(`{"kind":"var"}`),
-			Spec: []byte(`{"kind":"var"}`), Chain: c, Diag: dc, Baseline: &db, Vector: NewVectorDiag(&vc), BaselineVector: NewVectorDiag(&vb)}
+			Spec: []byte(`{"kind":"var"}`), Chain: c, Diag: dc, Baseline: &db, BaselineTransition: b.Transition, Vector: NewVectorDiag(&vc), BaselineVector: NewVectorDiag(&vb)}
 		if pt == 1 {
 			r.Vector.ChainMean, r.Vector.ChainCov, r.Vector.StationaryCovErr = nil, nil, 0
 		}

@@ -15,14 +15,15 @@ import (
 // It changes whenever a column or metadata key changes meaning. Version 2
 // added the vector columns of the diagnostics and summary tables; version 3
 // the numeric version (KeyNumeric), which verify checks every spec hash
-// against.
-const FormatVersion = "3"
+// against; version 4 the baseline table (the comparison method's
+// transition matrices).
+const FormatVersion = "4"
 
 // Key/value metadata keys carried by every file (Parquet key/value
 // metadata; Arrow IPC schema metadata).
 const (
 	KeyFormatVersion = "gridstage.format_version"  // FormatVersion
-	KeyTable         = "gridstage.table"           // points, transitions, states, diagnostics or summary
+	KeyTable         = "gridstage.table"           // points, transitions, baseline, states, diagnostics or summary
 	KeyTool          = "gridstage.tool_version"    // gridstage version that wrote the file
 	KeyNumeric       = "gridstage.numeric_version" // numeric version the chains were solved under
 	KeyRun           = "gridstage.run"             // run name

@@ -64,6 +64,10 @@ type Record struct {
 	// Baseline optionally compares a baseline method's chain on the same
 	// number of states with the true process.
 	Baseline *solver.Diagnostics
+	// BaselineTransition is the baseline method's transition matrix,
+	// row-major over the states of Baseline (its grid is the Level of each
+	// of Baseline.States); required exactly when Baseline is set.
+	BaselineTransition []float64
 	// Vector optionally compares Chain with a vector process as a whole
 	// (conditional mean vectors and covariance matrices, stationary
 	// covariance); BaselineVector likewise for the baseline chain, and

@@ -75,7 +75,7 @@ func (e *MismatchError) Error() string {
 	return s[:len(s)-1] + ": " + e.Problem
 }
 
-// Reader streams the records of a Set from its five files, checking as it
+// Reader streams the records of a Set from its six files, checking as it
 // goes that the tables fit together and that each point's chain hash
 // matches the points table.
 type Reader struct {
@@ -311,19 +311,8 @@ func (r *Reader) readAge(rec *Record) error {
 	}
 
 	// transitions
-	tr := r.cur[TableTransitions]
-	c.Transition = make([]float64, n*n)
-	for k := 0; k < n*n; k++ {
-		if here, err := r.at(TableTransitions, point, age); err != nil {
-			return err
-		} else if !here {
-			return r.fail(TableTransitions, tr, point, age, "has %d rows for this chain, want %d (%d states)", k, n*n, n)
-		}
-		if f, t := int(tr.i32(2)), int(tr.i32(3)); f != k/n || t != k%n {
-			return r.fail(TableTransitions, tr, point, age, "from_state %d, to_state %d where %d, %d was expected", f, t, k/n, k%n)
-		}
-		c.Transition[k] = tr.f64(4)
-		tr.advance()
+	if c.Transition, err = r.readMatrix(TableTransitions, point, age, n); err != nil {
+		return err
 	}
 	r.chainHash.add(age, n, dim, c.Grid, c.Transition, matched, rec.Initial)
 
@@ -444,9 +433,39 @@ func (r *Reader) readAge(rec *Record) error {
 			return r.fail(TableDiagnostics, dg, point, age, "has %d rows for the baseline chain, the summary says %d states", len(base.States), states[1])
 		}
 		rec.Baseline, rec.BaselineVector = base, vectors[1]
+		if rec.BaselineTransition, err = r.readMatrix(TableBaseline, point, age, len(base.States)); err != nil {
+			return err
+		}
+	}
+	if here, err := r.at(TableBaseline, point, age); err != nil {
+		return err
+	} else if here && !hasBase {
+		return r.fail(TableBaseline, r.cur[TableBaseline], point, age, "has rows for a chain whose summary lists no baseline")
+	} else if here {
+		return r.fail(TableBaseline, r.cur[TableBaseline], point, age, "has more rows for this chain than its %d states fill", len(base.States))
 	}
 	rec.Chain, rec.Diag, rec.Vector = c, *d, vectors[0]
 	return nil
+}
+
+// readMatrix reads the n×n row-major matrix of (point, age) from a table
+// in the layout of the transitions table.
+func (r *Reader) readMatrix(table string, point, age, n int) ([]float64, error) {
+	tr := r.cur[table]
+	m := make([]float64, n*n)
+	for k := 0; k < n*n; k++ {
+		if here, err := r.at(table, point, age); err != nil {
+			return nil, err
+		} else if !here {
+			return nil, r.fail(table, tr, point, age, "has %d rows for this chain, want %d (%d states)", k, n*n, n)
+		}
+		if f, t := int(tr.i32(2)), int(tr.i32(3)); f != k/n || t != k%n {
+			return nil, r.fail(table, tr, point, age, "from_state %d, to_state %d where %d, %d was expected", f, t, k/n, k%n)
+		}
+		m[k] = tr.f64(4)
+		tr.advance()
+	}
+	return m, nil
 }
 
 // vectorSummaryFrom reads the vector columns of a summary row from column

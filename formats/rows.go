@@ -9,10 +9,22 @@ import (
 // with many states is split across batches rather than held whole.
 
 func appendTransitions(t *tableWriter, r *Record) error {
+	return appendMatrix(t, r, r.Chain.Transition, r.Chain.States())
+}
+
+// appendBaseline writes the baseline method's matrix, if any.
+func appendBaseline(t *tableWriter, r *Record) error {
+	if r.Baseline == nil {
+		return nil
+	}
+	return appendMatrix(t, r, r.BaselineTransition, len(r.Baseline.States))
+}
+
+// appendMatrix writes an n×n row-major matrix in long form.
+func appendMatrix(t *tableWriter, r *Record, m []float64, n int) error {
 	point, age, from, to, prob := t.i32(0), t.i32(1), t.i32(2), t.i32(3), t.f64(4)
-	n := r.Chain.States()
 	for i := 0; i < n; i++ {
-		for j, p := range r.Chain.Row(i) {
+		for j, p := range m[i*n : (i+1)*n] {
 			point.Append(int32(r.Point))
 			age.Append(int32(r.Age))
 			from.Append(int32(i))

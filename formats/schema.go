@@ -66,7 +66,7 @@ func schemaFor(table string, dim int, params []string) *arrow.Schema {
 		for _, p := range params {
 			fs = append(fs, field(ParamColumn(p), f64, false))
 		}
-	case TableTransitions:
+	case TableTransitions, TableBaseline:
 		fs = []arrow.Field{field(ColPoint, i32, false), field(ColAge, i32, false),
 			field(ColFrom, i32, false), field(ColTo, i32, false), field(ColProbability, f64, false)}
 	case TableStates:

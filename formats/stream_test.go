@@ -44,7 +44,7 @@ func streamPoints(t testing.TB, dir string, f Format, points, batch int) int64 {
 	}
 	for i := 0; i < points; i++ {
 		r := Record{Point: i, Params: map[string]float64{"draw": float64(i)}, SpecHash: specHash(`{}`),
-			Spec: []byte(`{}`), Chain: c, Diag: d, Baseline: &d}
+			Spec: []byte(`{}`), Chain: c, Diag: d, Baseline: &d, BaselineTransition: c.Transition}
 		if err := w.Append(r); err != nil {
 			t.Fatal(err)
 		}

@@ -314,7 +314,7 @@ func (c *rowChecker) batch(rec arrow.RecordBatch, base int64) error {
 		if c.started && (p < c.point || (p == c.point && a < c.age)) {
 			return c.fail(p, a, row, "rows are out of (point, age) order: follows point %d, age %d", c.point, c.age)
 		}
-		if c.meta.table == TableTransitions {
+		if c.meta.table == TableTransitions || c.meta.table == TableBaseline {
 			if err := c.transition(rec, i, p, a, row); err != nil {
 				return err
 			}
@@ -450,7 +450,7 @@ func (c *rowChecker) points(rec arrow.RecordBatch, base int64) error {
 // end runs the checks that need the whole file.
 func (c *rowChecker) end(rows int64) error {
 	switch c.meta.table {
-	case TableTransitions:
+	case TableTransitions, TableBaseline:
 		if c.started {
 			if err := c.endRow(); err != nil {
 				return err

@@ -181,6 +181,10 @@ func (w *Writer) check(r *Record) error {
 		return bad("transition has %d entries, want %d", len(c.Transition), n*n)
 	case c.Transition == nil && (len(r.Diag.States) != 0 || r.Baseline != nil || r.Vector != nil):
 		return bad("a terminal age (no transition) has no diagnostics")
+	case (r.Baseline == nil) != (r.BaselineTransition == nil):
+		return bad("a baseline needs both its diagnostics and its transition matrix")
+	case r.Baseline != nil && len(r.BaselineTransition) != len(r.Baseline.States)*len(r.Baseline.States):
+		return bad("baseline transition has %d entries, want %d", len(r.BaselineTransition), len(r.Baseline.States)*len(r.Baseline.States))
 	case r.BaselineVector != nil && r.Baseline == nil:
 		return bad("baseline vector diagnostics without baseline diagnostics")
 	case len(c.Matched) != n:
@@ -290,12 +294,13 @@ func (w *Writer) Append(r Record) error {
 	w.curHash.add(r.Age, r.Chain.States(), r.Chain.Dim, r.Chain.Grid, r.Chain.Transition, matched, r.Initial)
 	steps := []func() error{
 		func() error { return appendTransitions(w.tables[TableTransitions], &r) },
+		func() error { return appendBaseline(w.tables[TableBaseline], &r) },
 		func() error { return appendStates(w.tables[TableStates], &r, w.h.Dim) },
 		func() error { return appendDiagnostics(w.tables[TableDiagnostics], &r, w.h.Dim) },
 		func() error { return appendSummary(w.tables[TableSummary], &r, w.h.Dim) },
 	}
 	if w.terminal {
-		steps = steps[1:2]
+		steps = steps[2:3]
 	}
 	for _, step := range steps {
 		if err := step(); err != nil {

@@ -44,8 +44,12 @@ func writeRun(t *testing.T, manifest string, format formats.Format) string {
 			for _, q := range job.Params {
 				params[q.Name] = q.Value
 			}
-			set.Records = append(set.Records, formats.Record{Point: job.Point, Params: params, SpecHash: job.SpecHash,
-				Spec: job.Canonical, Chain: sol.Chain, Diag: sol.Diagnostics, Baseline: sol.BaselineDiagnostics})
+			rec := formats.Record{Point: job.Point, Params: params, SpecHash: job.SpecHash,
+				Spec: job.Canonical, Chain: sol.Chain, Diag: sol.Diagnostics, Baseline: sol.BaselineDiagnostics}
+			if sol.Baseline != nil {
+				rec.BaselineTransition = sol.Baseline.Transition
+			}
+			set.Records = append(set.Records, rec)
 		}
 		if _, err := formats.Write(dir, set, formats.Options{Format: format}); err != nil {
 			t.Fatal(err)

@@ -51,7 +51,7 @@ func record(t *testing.T, j job) formats.Record {
 	bd := solver.Diagnose(b, proc)
 	spec := []byte(fmt.Sprintf(`{"kind":"ar1","process":%q,"rho":%v}`, j.process, j.rho))
 	return formats.Record{Point: j.point, Params: map[string]float64{"rho": j.rho}, SpecHash: version.SpecHash(version.Numeric, spec),
-		Spec: spec, Chain: c, Diag: solver.Diagnose(c, proc), Baseline: &bd}
+		Spec: spec, Chain: c, Diag: solver.Diagnose(c, proc), Baseline: &bd, BaselineTransition: b.Transition}
 }
 
 func header(process string) formats.Header {
@@ -159,7 +159,7 @@ func TestMergeEqualsSingleRun(t *testing.T) {
 				if err != nil {
 					t.Fatal(err)
 				}
-				if rec.Shard != "1/1" || !rec.Succeeded || len(rec.Jobs) != 9 || len(rec.Files) != 10 {
+				if rec.Shard != "1/1" || !rec.Succeeded || len(rec.Jobs) != 9 || len(rec.Files) != 12 {
 					t.Fatalf("merged record: shard %s, succeeded %v, %d jobs, %d files", rec.Shard, rec.Succeeded, len(rec.Jobs), len(rec.Files))
 				}
 				for i, j := range rec.Jobs {

@@ -1,6 +1,6 @@
 // Reads gridstage output with general-purpose readers only: Parquet with
 // DuckDB (@duckdb/node-api), Arrow IPC with apache-arrow. For every
-// transitions table it checks that each row of each transition matrix —
+// transitions and baseline table it checks that each row of each transition matrix —
 // each (point, age, from_state) — sums to 1 within 1e-12 and that every
 // probability lies in [0, 1]; for every file, that the gridstage metadata
 // keys are present and that the content hash recomputed from the values
@@ -94,6 +94,12 @@ function sqlString(s) {
   return "'" + s.replaceAll("'", "''") + "'";
 }
 
+// Tables holding transition matrices in long form (docs/FORMATS.md): the
+// chains' own and the baseline method's.
+function isMatrixTable(table) {
+  return table === 'transitions' || table === 'baseline';
+}
+
 function checkKeys(path, meta) {
   for (const k of REQUIRED_KEYS) {
     if (!(k in meta)) fail(`${path}: metadata key ${k} is missing`);
@@ -117,7 +123,7 @@ async function checkParquet(conn, path) {
   const data = all.getColumns();
   const columns = names.map((name, k) => ({ name, type: duckTypes[types[k].toString()] ?? types[k].toString(), get: (i) => data[k][i] }));
   const report = { path, format: 'parquet', table: meta['gridstage.table'], rows: all.currentRowCount, metadata: meta };
-  if (report.table === 'transitions') await checkParquetRows(conn, path, f, report);
+  if (isMatrixTable(report.table)) await checkParquetRows(conn, path, f, report);
   // After the row checks, which name the row, not only the file.
   report.contentHash = checkContentHash(path, report.table, report.rows, columns, meta);
   return report;
@@ -159,7 +165,7 @@ function checkArrow(path) {
     const vec = table.getChild(field.name);
     return { name: field.name, type: arrowTypes[String(field.type)] ?? String(field.type), get: (i) => vec.get(i) };
   });
-  if (report.table === 'transitions') checkArrowRows(path, table, report);
+  if (isMatrixTable(report.table)) checkArrowRows(path, table, report);
   report.contentHash = checkContentHash(path, report.table, report.rows, columns, meta);
   return report;
 }
