@@ -33,7 +33,7 @@ func TestShardedRunMergesToSingleRun(t *testing.T) {
 	for _, c := range []struct {
 		manifest    string
 		jobs, files int
-	}{{"sweep.yaml", 13, 10}, {"lifecycle.yaml", 5, 5}} {
+	}{{"sweep.yaml", 13, 12}, {"lifecycle.yaml", 5, 6}} {
 		t.Run(c.manifest, func(t *testing.T) {
 			manifest := filepath.Join("..", "..", "testdata", "slurm", c.manifest)
 			root := t.TempDir()
