@@ -9,6 +9,7 @@ import (
 	"math"
 	"strconv"
 	"strings"
+	"time"
 	"unicode/utf8"
 )
 
@@ -81,10 +82,10 @@ func appendNpy(b []byte, a *Array) []byte {
 	return b
 }
 
-// dosDate1980 is 1 January 1980 in MS-DOS date format, the earliest a ZIP
-// entry can carry: every entry gets it, so archives do not depend on the
-// clock.
-const dosDate1980 = 1<<5 | 1
+// entryTime is the modification time of every ZIP entry: 1 January 1980,
+// the earliest the MS-DOS date fields can carry, so archives do not
+// depend on the clock.
+var entryTime = time.Date(1980, 1, 1, 0, 0, 0, 0, time.UTC)
 
 // WriteNpz writes the arrays as a .npz archive, as numpy.savez would: a
 // ZIP archive with one stored (uncompressed) member <name>.npy per array,
@@ -94,7 +95,7 @@ func WriteNpz(w io.Writer, arrays []Array) error {
 	var buf []byte
 	for i := range arrays {
 		buf = appendNpy(buf[:0], &arrays[i])
-		f, err := z.CreateHeader(&zip.FileHeader{Name: arrays[i].Name + ".npy", Method: zip.Store, ModifiedDate: dosDate1980})
+		f, err := z.CreateHeader(&zip.FileHeader{Name: arrays[i].Name + ".npy", Method: zip.Store, Modified: entryTime})
 		if err != nil {
 			return err
 		}
