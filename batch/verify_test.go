@@ -10,6 +10,8 @@ import (
 	"path/filepath"
 	"strings"
 	"testing"
+
+	"gridstage/formats"
 )
 
 // smallManifest is the issue-16 reproduction manifest: its output is
@@ -43,8 +45,8 @@ func TestVerifyAgainstRecord(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if rep.BytesChecked != 5 || rep.Record == nil || rep.Sets != 1 {
-		t.Errorf("bytes of %d files checked, %d sets, record %v; want 5, 1, a record", rep.BytesChecked, rep.Sets, rep.Record != nil)
+	if rep.BytesChecked != len(formats.Tables) || rep.Record == nil || rep.Sets != 1 {
+		t.Errorf("bytes of %d files checked, %d sets, record %v; want %d, 1, a record", rep.BytesChecked, rep.Sets, rep.Record != nil, len(formats.Tables))
 	}
 	// A single file is checked against the record beside it.
 	rep, err = Verify(filepath.Join(dir, "inc.transitions.parquet"), VerifyOptions{})
@@ -87,7 +89,7 @@ func TestMixedRunsAreRefused(t *testing.T) {
 	runInto(t, smallManifest, crashed)
 	second := t.TempDir()
 	runInto(t, otherManifest, second)
-	for _, table := range []string{"points", "transitions", "states", "diagnostics", "summary"} {
+	for _, table := range formats.Tables {
 		name := "inc." + table + ".parquet"
 		b, err := os.ReadFile(filepath.Join(second, name))
 		if err != nil {
@@ -113,7 +115,7 @@ func TestMixedRunsAreRefused(t *testing.T) {
 	// A set left by another run beside a complete run.
 	mixed := t.TempDir()
 	runInto(t, smallManifest, mixed)
-	for _, table := range []string{"points", "transitions", "states", "diagnostics", "summary"} {
+	for _, table := range formats.Tables {
 		name := "ret." + table + ".parquet"
 		b, _ := os.ReadFile(filepath.Join(second, name))
 		os.WriteFile(filepath.Join(mixed, name), b, 0o644)
@@ -171,7 +173,7 @@ func TestRecordTamperingFails(t *testing.T) {
 func TestEveryByteFlipFailsVerify(t *testing.T) {
 	dir := t.TempDir()
 	runInto(t, smallManifest, dir)
-	for _, table := range []string{"points", "transitions", "states", "diagnostics", "summary"} {
+	for _, table := range formats.Tables {
 		path := filepath.Join(dir, "inc."+table+".parquet")
 		orig, err := os.ReadFile(path)
 		if err != nil {
