@@ -41,6 +41,9 @@ type Options struct {
 	Progress func(n int)
 	// Force rewrites the output even when it is already up to date.
 	Force bool
+	// Advise computes grid advice (Result.Advice) for every process with
+	// states that fell back; it solves a few chains more per such process.
+	Advise bool
 }
 
 // Result is what Run did.
@@ -63,6 +66,23 @@ type Result struct {
 	// in the folder was not taken as up to date (a file changed, the
 	// record is damaged) and the run solved again.
 	Stale string
+	// Advice holds, when Options.Advise is set, the grid advice of every
+	// process with fallback jobs, in manifest order.
+	Advice []ProcessAdvice
+}
+
+// ProcessAdvice is the grid advice of one process: computed for its job
+// with the most states that fell back (the first such in job order).
+type ProcessAdvice struct {
+	Process string
+	// Jobs counts the process's jobs with fallback states.
+	Jobs int
+	// Worst is that job, with States of its chain states falling back.
+	Worst     manifests.Job
+	Fallbacks int
+	States    int
+	// Text is the advice (manifests.Problem.FallbackAdvice).
+	Text string
 }
 
 // solved is a job's result as it travels from a worker to the writer.
@@ -177,6 +197,7 @@ func Run(ctx context.Context, m *manifests.Manifest, opt Options) (*Result, erro
 
 	sets := newSetWriter(m, dir, format)
 	defer sets.abort()
+	worst := map[string]*worstJob{}
 	delivered := 0
 	sink := func(k int, v solved, jobErr error) error {
 		job := m.Jobs[jobs[k]]
@@ -196,6 +217,9 @@ func Run(ctx context.Context, m *manifests.Manifest, opt Options) (*Result, erro
 		rec.Fallbacks = v.sol.Fallbacks()
 		if rec.Fallbacks > 0 {
 			res.FallbackJobs++
+			if opt.Advise {
+				noteWorst(worst, job, v.sol, rec.Fallbacks)
+			}
 			log.Debug("states fell back to fewer moments", "process", job.Process, "point", job.Point,
 				"states", rec.Fallbacks, "of", v.sol.States())
 		}
@@ -222,6 +246,9 @@ func Run(ctx context.Context, m *manifests.Manifest, opt Options) (*Result, erro
 			runErr = errors.Join(runErr, err)
 			break
 		}
+	}
+	if opt.Advise {
+		res.Advice = adviseWorst(m, worst)
 	}
 	res.Cached = int(cachedCount.Load())
 	res.Solved = report.Done - res.Cached

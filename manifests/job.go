@@ -88,6 +88,9 @@ type Problem struct {
 	// Baseline holds the comparison settings; nil when the process asks
 	// for no comparison (compare: none).
 	Baseline *solver.Settings
+	// DefaultWidth reports that Settings.Width was not given but follows
+	// the default rule √(N−1), so that grid advice lets it follow N.
+	DefaultWidth bool
 }
 
 // Build returns the solver inputs of the job. It fails only for a Job not
@@ -97,7 +100,7 @@ func (j Job) Build() (Problem, error) {
 	if err != nil {
 		return Problem{}, err
 	}
-	p := Problem{Settings: q.settings}
+	p := Problem{Settings: q.settings, DefaultWidth: q.defaultWidth()}
 	if ak, ok := q.spec.(ageKind); ok {
 		p.AgeModel = ak.ageModel()
 	} else {

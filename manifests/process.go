@@ -2,6 +2,7 @@ package manifests
 
 import (
 	"fmt"
+	"math"
 	"regexp"
 	"strings"
 
@@ -319,6 +320,17 @@ func (p *processSpec) chosenMethod() solver.Method {
 		return m
 	}
 	return p.spec.methods()[0]
+}
+
+// defaultWidth reports that the process's grid has a width that follows
+// the default rule √(N−1): not given, or given equal to it (a canonical
+// spec always gives the width). Valid after check passed.
+func (p *processSpec) defaultWidth() bool {
+	s := p.settings
+	if s.Method != solver.MaxEnt || (s.Nodes != solver.NodesLattice && s.Nodes != solver.NodesGaussLegendre) {
+		return false
+	}
+	return !p.width.set || math.Abs(s.Width-solver.DefaultWidth(s.States)) <= 1e-12*s.Width
 }
 
 // chainStates returns the number of states of the process's chain. Valid

@@ -118,6 +118,7 @@ func (s *productSpec) model() Model {
 		part := p.spec.model()
 		m.Parts = append(m.Parts, part)
 		m.Settings = append(m.Settings, p.settings)
+		m.defaultWidth = append(m.defaultWidth, p.defaultWidth())
 		vt, ok := part.(solver.VectorTruth)
 		if !ok {
 			vt = solver.AsVector(part)
@@ -135,6 +136,8 @@ type productModel struct {
 	Parts    []Model
 	Settings []solver.Settings
 	truth    solver.Independent
+	// defaultWidth[i] reports that component i's width follows √(N−1).
+	defaultWidth []bool
 }
 
 var _ solver.VectorTruth = productModel{}

@@ -96,7 +96,9 @@ func jobOf(s *formats.Set) (Job, error) {
 	j := Job{Process: s.Process, Kind: s.Kind, Method: s.Method, Dim: s.Dim, Params: append([]string(nil), s.Params...)}
 	sort.Strings(j.Params)
 	laws := map[string]figures.Law{} // by canonical spec: sweeps repeat few
+	worst := worstPoint{}
 	for _, rec := range s.Records {
+		worst.note(rec)
 		if rec.Chain == nil {
 			return Job{}, fmt.Errorf("point %d age %d has no chain", rec.Point, rec.Age)
 		}
@@ -121,6 +123,10 @@ func jobOf(s *formats.Set) (Job, error) {
 		law.Mean, law.SD = diag.True.Mean, diag.True.SD
 		cs := figures.Case{Chain: rec.Chain, Diag: &diag, BaselineDiag: rec.Baseline, Law: law}
 		pt.Chains = append(pt.Chains, Chain{Case: cs, Age: rec.Age, Initial: rec.Initial})
+	}
+	worst.finish()
+	if worst.spec != nil {
+		j.Advice, j.AdvicePoint = adviseSpec(worst.spec, worst.chains), worst.point
 	}
 	return j, nil
 }

@@ -113,11 +113,14 @@ func buildPage(r Run, opt Options) (page, error) {
 			for ci, c := range pt.Chains {
 				k := ref{ji, pi, ci}
 				all = append(all, k)
+				var v Verdict
 				if pt.LifeCycle() {
-					verdicts[k] = AssessAge(c.Case)
+					v = AssessAge(c.Case)
 				} else {
-					verdicts[k] = Assess(c.Case)
+					v = Assess(c.Case)
 				}
+				v.advise(c.Case, j)
+				verdicts[k] = v
 			}
 		}
 	}

@@ -37,6 +37,11 @@ type Job struct {
 	Files []File
 	// Points holds the sweep points in index order.
 	Points []Point
+	// Advice is the grid advice for the job's fallback states, computed
+	// for AdvicePoint, the point with the most states that fell back
+	// (manifests.Problem.Advise); empty when none fell back.
+	Advice      string
+	AdvicePoint int
 }
 
 // File is one output file and its provenance.

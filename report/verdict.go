@@ -112,6 +112,15 @@ func assess(c figures.Case, age bool) Verdict {
 	return v
 }
 
+// advise adds the job's grid advice to the verdict of a chain that fell
+// back (Job.Advice, computed for the point with most fallback states).
+func (v *Verdict) advise(c figures.Case, j Job) {
+	if c.Chain.Fallbacks() == 0 || j.Advice == "" {
+		return
+	}
+	v.Reasons = append(v.Reasons, fmt.Sprintf("Grid advice (computed for point %d, the one with the most states that fell back): %s.", j.AdvicePoint, j.Advice))
+}
+
 func overUnder(rel float64) string {
 	if rel < 0 {
 		return "understated"

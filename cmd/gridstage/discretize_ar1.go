@@ -44,17 +44,12 @@ func newAR1Cmd() *cobra.Command {
 			if shock.family != "normal" {
 				entry["innovation"] = shock.law()
 			}
-			sol, prov, err := solveEntry(entry)
+			sol, prov, advice, err := solveEntry(entry)
 			if err != nil {
 				return err
 			}
 			out := chainReport{Kind: "ar1", Process: ar1Params(p, shock), Chain: sol.Chain, Diag: sol.Diagnostics,
-				Baseline: sol.Baseline, BaselineDiag: sol.BaselineDiagnostics, Provenance: &prov}
-			if s.Method == solver.MaxEnt && !solver.Carries(sol.Chain) {
-				if adv, err := p.Advise(s, 0); err == nil {
-					out.Advice = adv.String()
-				}
-			}
+				Baseline: sol.Baseline, BaselineDiag: sol.BaselineDiagnostics, Provenance: &prov, Advice: advice}
 			return out.print(cmd.OutOrStdout(), ms.json)
 		},
 	}

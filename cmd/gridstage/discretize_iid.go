@@ -40,13 +40,13 @@ with - for _):
 			}
 			law := shock.distributionLaw()
 			entry := ms.entry(cmd, map[string]any{"kind": "iid", "distribution": law})
-			sol, prov, err := solveEntry(entry)
+			sol, prov, advice, err := solveEntry(entry)
 			if err != nil {
 				return err
 			}
 			c := sol.Chain
 			out := &solver.Discrete{Nodes: c.Grid, Weights: c.Row(0), Moments: c.Moments, Matched: c.Matched[0]}
-			return printIID(cmd.OutOrStdout(), law, out, solver.IID{Dist: d}, prov, ms.json)
+			return printIID(cmd.OutOrStdout(), law, out, solver.IID{Dist: d}, prov, advice, ms.json)
 		},
 	}
 	fs := cmd.Flags()
@@ -137,6 +137,8 @@ type iidJSON struct {
 	Weights      []float64      `json:"weights"`
 	Moments      int            `json:"moments"`
 	Diagnostics  iidDiag        `json:"diagnostics"`
+	// Advice says what grid would carry the requested moments.
+	Advice string `json:"advice,omitempty"`
 	provenance
 }
 
@@ -146,7 +148,7 @@ type iidDiag struct {
 	True     solver.Moments `json:"true"`
 }
 
-func printIID(w io.Writer, law map[string]any, d *solver.Discrete, p solver.IID, prov provenance, asJSON bool) error {
+func printIID(w io.Writer, law map[string]any, d *solver.Discrete, p solver.IID, prov provenance, advice string, asJSON bool) error {
 	got := solver.WeightedMoments(d.Weights, d.Nodes)
 	truth := p.Conditional(nil)
 	if asJSON {
@@ -155,7 +157,7 @@ func printIID(w io.Writer, law map[string]any, d *solver.Discrete, p solver.IID,
 			grid[i] = []float64{x}
 		}
 		return finitejson.Encode(w, iidJSON{Kind: "iid", Distribution: law, Grid: grid, Weights: d.Weights, Moments: d.Moments,
-			Diagnostics: iidDiag{Matched: d.Matched, Discrete: got, True: truth}, provenance: prov})
+			Diagnostics: iidDiag{Matched: d.Matched, Discrete: got, True: truth}, Advice: advice, provenance: prov})
 	}
 	fmt.Fprintf(w, "%s distribution, %d points, %d of %d moments matched\n\n", law["law"], len(d.Nodes), d.Matched, d.Moments)
 	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)
@@ -175,7 +177,10 @@ func printIID(w io.Writer, law map[string]any, d *solver.Discrete, p solver.IID,
 	}
 	tw.Flush()
 	if d.Matched < d.Moments {
-		fmt.Fprintf(w, "\nwarning: only %d of %d moments could be matched on this grid\n", d.Matched, d.Moments)
+		fmt.Fprintf(w, "\nwarning: only %d of %d moments could be matched on this grid (proven infeasible there)\n", d.Matched, d.Moments)
+		if advice != "" {
+			fmt.Fprintln(w, "advice: "+advice)
+		}
 	}
 	prov.printText(w)
 	return nil

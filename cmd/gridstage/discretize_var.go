@@ -58,12 +58,12 @@ VAR construction.`,
 			if _, _, err := vs.baseline(s.Method); err != nil {
 				return err
 			}
-			sol, prov, err := solveEntry(vs.entry(cmd, p))
+			sol, prov, advice, err := solveEntry(vs.entry(cmd, p))
 			if err != nil {
 				return err
 			}
 			out := varReport{Process: p, Settings: s, Chain: sol.Chain, Diag: *sol.Vector,
-				Baseline: sol.Baseline, BaselineDiag: sol.BaselineVector, Provenance: prov}
+				Baseline: sol.Baseline, BaselineDiag: sol.BaselineVector, Provenance: prov, Advice: advice}
 			return out.print(cmd.OutOrStdout(), vs.json)
 		},
 	}
@@ -185,6 +185,9 @@ type varReport struct {
 	Baseline     *solver.Chain
 	BaselineDiag *solver.VectorDiagnostics
 	Provenance   provenance
+	// Advice says what grid would carry the requested moments; empty when
+	// nothing fell back.
+	Advice string
 }
 
 // varJSON has the shape of the ar1 output (contract: grid is an array of
@@ -201,6 +204,8 @@ type varJSON struct {
 	Matched     []int                    `json:"matched"`
 	Diagnostics solver.VectorDiagnostics `json:"diagnostics"`
 	Baseline    *varBaselineJSON         `json:"baseline,omitempty"`
+	// Advice says what grid would carry the requested moments.
+	Advice string `json:"advice,omitempty"`
 	provenance
 }
 
@@ -215,7 +220,7 @@ func (r varReport) print(w io.Writer, asJSON bool) error {
 	if asJSON {
 		j := varJSON{Kind: "var", Process: varParams(r.Process), Method: r.Chain.Method.String(), Moments: r.Chain.Moments,
 			Grid: gridRows(r.Chain), Transition: transitionRows(r.Chain), Stationary: r.Diag.Stationary,
-			Matched: r.Chain.Matched, Diagnostics: r.Diag, provenance: r.Provenance}
+			Matched: r.Chain.Matched, Diagnostics: r.Diag, Advice: r.Advice, provenance: r.Provenance}
 		if r.Chain.Method == solver.MaxEnt {
 			j.Axes = r.Settings.Axes.String()
 		}
@@ -320,11 +325,16 @@ func (r varReport) printText(w io.Writer) error {
 	worst("stationary covariance", func(v solver.VectorDiagnostics) float64 { return v.StationaryCovErr })
 	worst("lag-one autocorrelation", func(v solver.VectorDiagnostics) float64 { return v.AutocorrErr })
 	tw.Flush()
-	if dg.StationaryErr != "" {
+	if dg.Degenerate != "" {
+		fmt.Fprintln(w, "\nwarning: degenerate chain: "+dg.Degenerate)
+	} else if dg.StationaryErr != "" {
 		fmt.Fprintln(w, "\nwarning: "+dg.StationaryErr)
 	}
 	if k := c.Fallbacks(); k > 0 {
-		fmt.Fprintf(w, "\nwarning: %d state(s) could not match the full moment set (the grid cannot carry it there); see the matched column\n", k)
+		fmt.Fprintf(w, "\nwarning: %d state(s) could not match the full moment set (proven infeasible on this grid there); see the matched column\n", k)
+		if r.Advice != "" {
+			fmt.Fprintln(w, "advice: "+r.Advice)
+		}
 	}
 	r.Provenance.printText(w)
 	return nil

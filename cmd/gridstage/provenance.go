@@ -28,26 +28,29 @@ type provenance struct {
 // flags of `discretize` turned into manifest keys) through the same path as
 // `run`: canonical spec and spec hash from package manifests, then the
 // job's solve. The flags were checked before, so an error here is a flag
-// combination the manifest rules reject; it is reported as bad input.
-func solveEntry(entry map[string]any) (manifests.Solution, provenance, error) {
+// combination the manifest rules reject; it is reported as bad input. The
+// string is the grid advice for the fallback warning (Problem.FallbackAdvice),
+// empty when nothing fell back.
+func solveEntry(entry map[string]any) (manifests.Solution, provenance, string, error) {
+	var none manifests.Solution
 	b, err := json.Marshal(entry)
 	if err != nil {
-		return manifests.Solution{}, provenance{}, err
+		return none, provenance{}, "", err
 	}
 	job, err := manifests.ParseSpec(b)
 	if err != nil {
-		return manifests.Solution{}, provenance{}, entryError(err)
+		return none, provenance{}, "", entryError(err)
 	}
 	prob, err := job.Build()
 	if err != nil {
-		return manifests.Solution{}, provenance{}, err
+		return none, provenance{}, "", err
 	}
 	sol, err := prob.Solve()
 	if err != nil {
-		return manifests.Solution{}, provenance{}, flagError(err, paramFlags)
+		return none, provenance{}, "", flagError(err, paramFlags)
 	}
 	return sol, provenance{Spec: json.RawMessage(job.Canonical), SpecHash: job.SpecHash,
-		ChainHash: batch.ChainHash(job, sol), Numeric: version.Numeric, Tool: version.Tool}, nil
+		ChainHash: batch.ChainHash(job, sol), Numeric: version.Numeric, Tool: version.Tool}, prob.FallbackAdvice(sol, 0), nil
 }
 
 // printText ends the text output with the chain's identity.

@@ -9,6 +9,7 @@ import (
 	"os"
 	"os/signal"
 	"path/filepath"
+	"strings"
 	"syscall"
 	"time"
 
@@ -58,7 +59,7 @@ On a Slurm array job the share of jobs is taken from the array variables;
 				}
 				return badInput("%v", err)
 			}
-			opt := batch.Options{Out: out, Workers: workers, Force: force}
+			opt := batch.Options{Out: out, Workers: workers, Force: force, Advise: true}
 			if cmd.Flags().Changed("format") {
 				f, err := formats.ParseFormat(format)
 				if err != nil {
@@ -134,6 +135,18 @@ func cacheFolder(flag string) string {
 	return ""
 }
 
+// paramText writes swept values as " (rho=0.9, sigma=0.1)", or "".
+func paramText(ps []manifests.Param) string {
+	if len(ps) == 0 {
+		return ""
+	}
+	parts := make([]string, len(ps))
+	for i, p := range ps {
+		parts[i] = fmt.Sprintf("%s=%g", p.Name, p.Value)
+	}
+	return " (" + strings.Join(parts, ", ") + ")"
+}
+
 func printRunSummary(w io.Writer, m *manifests.Manifest, r *batch.Result, took time.Duration) {
 	jobs := r.Jobs
 	if r.UpToDate {
@@ -147,7 +160,11 @@ func printRunSummary(w io.Writer, m *manifests.Manifest, r *batch.Result, took t
 	fmt.Fprintf(w, "run %q: %d jobs (%d solved, %d from cache, %d failed) in %s, shard %s\n",
 		m.Run, jobs, r.Solved, r.Cached, r.Failed, took.Round(time.Millisecond), r.Record.Shard)
 	if fallbacks := r.FallbackJobs; fallbacks > 0 {
-		fmt.Fprintf(w, "warning: in %d of %d jobs some states matched fewer moments than requested (the grid cannot carry them there); `gridstage report` shows which\n", fallbacks, jobs)
+		fmt.Fprintf(w, "warning: in %d of %d jobs some states matched fewer moments than requested (proven infeasible there on those grids); `gridstage report` shows which\n", fallbacks, jobs)
+		for _, a := range r.Advice {
+			fmt.Fprintf(w, "  %s: %d job(s); most at point %d%s, %d of %d states fell back\n    advice for that job: %s\n",
+				a.Process, a.Jobs, a.Worst.Point, paramText(a.Worst.Params), a.Fallbacks, a.States, a.Text)
+		}
 	}
 	for _, s := range r.Sets {
 		for _, f := range s.Files {
