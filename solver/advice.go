@@ -121,10 +121,6 @@ func widthApplies(s Settings) bool {
 // matches no moments by a solve.
 var errAdviceMethod = errors.New("solver: grid advice applies to method maxent only")
 
-// probe solves one candidate grid: it reports whether the chain carries
-// its moments and how many states it has.
-type probe func(s Settings) (carries bool, total int, err error)
-
 // ChainProbe makes the probe of a time-invariant process from its
 // Discretize.
 func ChainProbe(build func(Settings) (*Chain, error)) func(Settings) (bool, int, error) {
