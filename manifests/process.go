@@ -264,7 +264,7 @@ func (p *processSpec) check(r *reporter) bool {
 		base, hasBase = p.spec.defaultBaseline(method)
 	}
 
-	ok = ok && p.spec.rules(r, p)
+	ok = ok && p.spec.rules(r, p) && checkNumericRanges(r, p)
 	if !ok {
 		return false
 	}
@@ -304,7 +304,7 @@ func (p *processSpec) checkComposite(r *reporter, kindOK bool) bool {
 		r.add(p.compare.at, ErrRule, "kind %s has no baseline: want none, or leave compare out", p.kind.v)
 		ok = false
 	}
-	ok = ok && p.spec.rules(r, p)
+	ok = ok && p.spec.rules(r, p) && checkNumericRanges(r, p)
 	if !ok {
 		return false
 	}

@@ -55,7 +55,7 @@ func (p AR1) Validate() error {
 	case math.IsNaN(p.Mean) || math.IsInf(p.Mean, 0):
 		return badParam("mean", p.Mean, "finite")
 	}
-	return nil
+	return p.ranges()
 }
 
 // MaxMoments returns how many conditional moments can be matched for this

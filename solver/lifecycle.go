@@ -53,7 +53,7 @@ func (p LifeCycle) Validate() error {
 			return badParam("sigma["+strconv.Itoa(t)+"]", p.Sigma[t], "finite and > 0")
 		}
 	}
-	return nil
+	return p.ranges()
 }
 
 // Variances returns V_t = Var z_t for t = 0 … T: V_0 = σ_0², V_{t+1} = ρ_t² V_t + σ_t².

@@ -35,7 +35,10 @@ func (p SV) Validate() error {
 	case p.LogVar.Shock != nil:
 		return badParam("logvar shock", 0, "normal (nil): the level's variance needs the normal moment generating function")
 	}
-	return prefixParam(p.LogVar.Validate(), "logvar ")
+	if err := prefixParam(p.LogVar.Validate(), "logvar "); err != nil {
+		return err
+	}
+	return p.ranges()
 }
 
 // prefixParam prefixes the parameter name of a *ParamError (other errors

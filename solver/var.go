@@ -71,7 +71,7 @@ func (p VAR) Validate() error {
 	if r := spectralRadius(p.Coef, d); !(r < 1) {
 		return badParam("coef spectral radius", r, "< 1 (the VAR must be stationary)")
 	}
-	return nil
+	return p.ranges()
 }
 
 // spectralRadius returns the largest modulus of B's eigenvalues.

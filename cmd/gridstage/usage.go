@@ -24,11 +24,11 @@ func isCobraUsage(err error) bool {
 func flagError(err error, flagFor map[string]string) error {
 	var pe *solver.ParamError
 	if errors.As(err, &pe) {
-		name := pe.Param
-		if f, ok := flagFor[name]; ok {
-			name = f
+		if f, ok := flagFor[pe.Param]; ok {
+			return badInput("--%s %g is out of range: want %s", f, pe.Value, pe.Want)
 		}
-		return badInput("--%s %g is out of range: want %s", name, pe.Value, pe.Want)
+		// A quantity derived from several flags (the stationary s.d., say).
+		return badInput("%s = %.6g is out of range: want %s", pe.Param, pe.Value, pe.Want)
 	}
 	return err
 }

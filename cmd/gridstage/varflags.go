@@ -81,13 +81,16 @@ func (f *varFlags) process(cmd *cobra.Command) (solver.VAR, error) {
 		var pe *solver.ParamError
 		if errors.As(err, &pe) {
 			switch {
-			case pe.Param == "coef spectral radius":
+			case pe.Param == "coef spectral radius" && pe.Value >= 1:
 				return p, badInput("--coef has spectral radius %.6g: want < 1 (a stationary VAR)", pe.Value)
-			case pe.Param == "cov smallest eigenvalue":
+			case pe.Param == "coef spectral radius":
+				return p, badInput("--coef has spectral radius %.10g: want %s", pe.Value, pe.Want)
+			case pe.Param == "cov smallest eigenvalue" && !(pe.Value > 0):
 				return p, badInput("--cov is not positive definite: its smallest eigenvalue is %.6g, want > 0", pe.Value)
-			case strings.HasPrefix(pe.Param, "cov"):
-				return p, badInput("--cov is invalid: %s = %g, want %s", pe.Param, pe.Value, pe.Want)
+			case strings.HasPrefix(pe.Param, "cov") || strings.HasPrefix(pe.Param, "sqrt(cov"):
+				return p, badInput("--cov is out of range: %s = %.6g, want %s", pe.Param, pe.Value, pe.Want)
 			}
+			return p, badInput("%s = %.6g is out of range: want %s", pe.Param, pe.Value, pe.Want)
 		}
 		return p, badInput("%v", err)
 	}
