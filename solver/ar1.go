@@ -40,6 +40,9 @@ type Settings struct {
 	// Axes orients the tensor grid of vector processes (VAR); the zero value
 	// is AxesPrincipal. Univariate processes ignore it.
 	Axes Axes
+	// Matching is MaxEnt's per-state policy; the zero value is MatchExact.
+	// Baselines ignore it.
+	Matching Matching
 }
 
 // StationarySD returns σ/√(1−ρ²), the unconditional standard deviation.
@@ -74,6 +77,9 @@ func MaxMoments(shock Distribution) int {
 
 // resolveMoments applies the default and range rules for s.Moments.
 func resolveMoments(s Settings, shock Distribution) (int, error) {
+	if err := checkMatching(s.Matching); err != nil {
+		return 0, err
+	}
 	limit := MaxMoments(shock)
 	if s.Method != MaxEnt {
 		if s.Moments != 0 && s.Moments != s.Method.ExactMoments() {
@@ -135,7 +141,7 @@ func (p AR1) Discretize(s Settings) (*Chain, error) {
 		nodes, logW := placeGrid(s.Nodes, n, p.Mean, sdY, s.Width, Normal{p.Mean, sdY})
 		setLaw(nodes)
 		c.Certificates = make([]Certificate, n)
-		maxentRows(nodes, logW, law, L, c.Transition, c.Matched, c.Certificates)
+		maxentRows(nodes, logW, law, L, s.Matching, c.Transition, c.Matched, c.Certificates)
 		c.Grid = nodes
 	case Tauchen:
 		width := s.Width

@@ -24,9 +24,13 @@ const (
 	// was found. The solver is built so that this does not happen; it is
 	// recorded, never hidden, if it does.
 	CertUnproven
+	// CertRelaxed: the smooth policy (MatchSmooth) matched every moment
+	// up to the level reported and carried the others as closely as its
+	// penalty allows; their errors are in the diagnostics.
+	CertRelaxed
 )
 
-var certificateNames = [...]string{"none", "solved", "infeasible", "unproven"}
+var certificateNames = [...]string{"none", "solved", "infeasible", "unproven", "relaxed"}
 
 func (c Certificate) String() string {
 	if c >= 0 && int(c) < len(certificateNames) {
@@ -85,7 +89,7 @@ func infeasibleAt(dev []float64, n, L int, y []float64) bool {
 
 // combineCerts is the certificate of a state built from independent parts
 // (a product chain, a stochastic-volatility state): the least assuring of
-// the parts', in the order solved, none, infeasible, unproven.
+// the parts', in the order solved, none, relaxed, infeasible, unproven.
 func combineCerts(a, b Certificate) Certificate {
 	rank := func(c Certificate) int {
 		switch c {
@@ -93,10 +97,12 @@ func combineCerts(a, b Certificate) Certificate {
 			return 0
 		case CertNone:
 			return 1
-		case CertInfeasible:
+		case CertRelaxed:
 			return 2
+		case CertInfeasible:
+			return 3
 		}
-		return 3
+		return 4
 	}
 	if rank(a) >= rank(b) {
 		return a

@@ -71,7 +71,7 @@ func (p IID) Discretize(s Settings) (*Discrete, error) {
 	w := make([]float64, n)
 	matched := []int{0}
 	certs := []Certificate{CertNone}
-	maxentRows(nodes, logW, law, L, w, matched, certs)
+	maxentRows(nodes, logW, law, L, s.Matching, w, matched, certs)
 	return &Discrete{Nodes: nodes, Weights: w, Moments: L, Matched: matched[0], Certificate: certs[0]}, nil
 }
 

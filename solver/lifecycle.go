@@ -209,7 +209,7 @@ func (p LifeCycle) Discretize(s Settings) (*AgeChain, error) {
 		switch s.Method {
 		case MaxEnt:
 			c.Certificates = make([]Certificate, n)
-			maxentRows(grids[t+1], logWs[t+1], law, L, c.Transition, c.Matched, c.Certificates)
+			maxentRows(grids[t+1], logWs[t+1], law, L, s.Matching, c.Transition, c.Matched, c.Certificates)
 		case Rouwenhorst:
 			pt := (1 + p.Rho[t]*math.Sqrt(vars[t]/vars[t+1])) / 2
 			rouwenhorstMatrix(n, pt, pt, c.Transition)
@@ -232,7 +232,7 @@ func (p LifeCycle) Discretize(s Settings) (*AgeChain, error) {
 	case MaxEnt:
 		m := []int{0}
 		cert := []Certificate{CertNone}
-		maxentRows(grids[0], logWs[0], law0, L0, ac.Initial, m, cert)
+		maxentRows(grids[0], logWs[0], law0, L0, s.Matching, ac.Initial, m, cert)
 		ac.InitialMatched, ac.InitialCertificate = m[0], cert[0]
 	case Rouwenhorst:
 		for i := range ac.Initial {

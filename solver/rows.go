@@ -36,25 +36,53 @@ func fallbackLadder(L int) []int {
 	return ladder
 }
 
+// shockScales returns the standard deviation of z^k, k = 1..L, under the
+// standardized shock: √(E z^{2k} − (E z^k)²), or the normal law's value
+// where the shock lacks the moment of order 2k. They scale the smooth
+// policy's penalty (smoothmatch.go).
+func shockScales(shock Distribution, L int) []float64 {
+	s := make([]float64, L)
+	for k := 1; k <= L; k++ {
+		m2k, mk := normalStdMoment(2*k), normalStdMoment(k)
+		if shock != nil {
+			a, okA := shock.StdMoment(2 * k)
+			b, okB := shock.StdMoment(k)
+			if okA && okB && a-b*b > 0 {
+				m2k, mk = a, b
+			}
+		}
+		s[k-1] = math.Sqrt(m2k - mk*mk)
+	}
+	return s
+}
+
 // quickIter is the Newton budget before the exact feasibility test runs.
 const quickIter = 12
 
 // maxentRows fills trans (one row of len(nodes) per entry of law.Mean)
 // with maximum-entropy transition rows on the given nodes, matching up to
-// L conditional moments in each state and falling back (see
-// fallbackLadder) only where the next level is proven infeasible. matched
+// L conditional moments in each state under the policy match: exactly,
+// falling back (see fallbackLadder) only where the next level is proven
+// infeasible, or smoothly (MatchSmooth). matched
 // and certs receive each state's level and certificate. States are solved
 // from the middle outwards so that each warm start comes from a
 // neighbour; on a symmetric problem (scalarMirror) only one half is solved
 // and the other mirrored.
-func maxentRows(nodes, logW []float64, law conditional, L int, trans []float64, matched []int, certs []Certificate) {
+func maxentRows(nodes, logW []float64, law conditional, L int, match Matching, trans []float64, matched []int, certs []Certificate) {
 	n, m := len(nodes), len(law.Mean)
 	targets := shockTargets(law.Shock, L)
 	logq := make([]float64, n)
 	dev := make([]float64, n*L)
 	z := make([]float64, n)
-	policy := newExactMatch(L, quickIter)
+	policy := newPolicy(match, L, quickIter)
+	order := make([]int, L)
+	for k := range order {
+		order[k] = k + 1
+	}
 	pr := &stateProblem{
+		cols:  func(l int) int { return l },
+		scale: shockScales(law.Shock, L),
+		order: order,
 		logq:   logq,
 		ladder: fallbackLadder(L),
 		at: func(l int) ([]float64, int) {

@@ -14,6 +14,15 @@ type stateProblem struct {
 	// separator returns a candidate direction proving level l infeasible
 	// (an exact test specific to the moment functions), or nil.
 	separator func(l int, dev []float64, cols int) []float64
+	// cols returns the number of moment functions of level l; they are
+	// the first columns of the top level's.
+	cols func(l int) int
+	// scale and order describe the top level's moment functions: the
+	// standard deviation of each under the true conditional law, and its
+	// order (1 for a mean, 2 for a second moment, …). The smooth policy
+	// scales its penalty by them.
+	scale []float64
+	order []int
 }
 
 // stateSolution is what a policy reports for one state.
@@ -26,9 +35,9 @@ type stateSolution struct {
 	Cert Certificate
 }
 
-// matchPolicy turns one state's problem into a transition row. The exact
-// maximum-entropy policy (exactMatch) is the only one so far; a policy
-// is used for the states of one chain in turn, so it may carry warm starts
+// matchPolicy turns one state's problem into a transition row: the exact
+// maximum-entropy policy (exactMatch) or the smooth one (smoothMatch). A
+// policy is used for the states of one chain in turn, so it may carry warm starts
 // from state to state, and is not safe for concurrent use.
 type matchPolicy interface {
 	// solveState writes the row (length len(pr.logq)) and reports the

@@ -125,7 +125,7 @@ func (p SV) Discretize(level, vol Settings) (*Chain, error) {
 		levelMatched[k] = make([]int, ny)
 		levelCerts[k] = make([]Certificate, ny)
 		if level.Method == MaxEnt {
-			maxentRows(nodes, logW, law, L, levelRows[k], levelMatched[k], levelCerts[k])
+			maxentRows(nodes, logW, law, L, level.Matching, levelRows[k], levelMatched[k], levelCerts[k])
 		} else {
 			tauchenRows(nodes, nodes[1]-nodes[0], law, levelRows[k])
 		}

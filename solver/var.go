@@ -149,6 +149,9 @@ func (p VAR) ConditionalMean(x, dst []float64) []float64 {
 // MaxEnt 0 means 2 (means and covariances); 1 to 4 select means, then
 // covariances, then the marginal third and fourth moments.
 func vectorMoments(s Settings) (int, error) {
+	if err := checkMatching(s.Matching); err != nil {
+		return 0, err
+	}
 	if s.Method != MaxEnt {
 		if s.Moments != 0 {
 			return 0, badParam("moments", float64(s.Moments), "unset for method "+s.Method.String()+" (it matches a fixed set of moments)")
@@ -225,7 +228,7 @@ func (p VAR) maxent(s Settings, L int) *Chain {
 	n := len(logWeights)
 	c := &Chain{Dim: d, Grid: grid, Method: MaxEnt, Moments: L,
 		Transition: make([]float64, n*n), Matched: make([]int, n), Certificates: make([]Certificate, n)}
-	maxentVectorRows(grid, logWeights, law, L, c.Transition, c.Matched, c.Certificates)
+	maxentVectorRows(grid, logWeights, law, L, s.Matching, c.Transition, c.Matched, c.Certificates)
 	return c
 }
 

@@ -63,16 +63,20 @@ func vectorLadder(L int) []int {
 // identity. matched[i] receives the ladder level reached in state i (0 when
 // even the means are infeasible and the prior row is used). The multipliers
 // of each state warm-start the next.
-func maxentVectorRows(grid, logW []float64, law gaussianVectorLaw, L int, trans []float64, matched []int, certs []Certificate) {
+func maxentVectorRows(grid, logW []float64, law gaussianVectorLaw, L int, match Matching, trans []float64, matched []int, certs []Certificate) {
 	d, n := law.d, len(logW)
 	full := vectorMomentCount(L, d)
 	logq := make([]float64, n)
 	allDev := make([]float64, n*full)
 	dev := make([]float64, n*full)
 	e, z := make([]float64, d), make([]float64, d)
-	policy := newExactMatch(full, vectorQuickIter)
+	policy := newPolicy(match, full, vectorQuickIter)
 	var ws wolfe
+	scale, order := vectorMomentShapes(L, d)
 	pr := &stateProblem{
+		cols:  func(l int) int { return vectorMomentCount(l, d) },
+		scale: scale,
+		order: order,
 		logq:   logq,
 		ladder: vectorLadder(L),
 		at: func(l int) ([]float64, int) {
@@ -113,6 +117,42 @@ func maxentVectorRows(grid, logW []float64, law gaussianVectorLaw, L int, trans 
 			matched[i], certs[i] = matched[k], certs[k]
 		}
 	}
+}
+
+// vectorMomentShapes returns, for the moment functions of level L in
+// dimension d (see maxentVectorRows), their standard deviations under the
+// true Gaussian law (z_k: 1; z_k z_l − δ_kl: 1, or √2 on the diagonal;
+// u³: √15; u⁴ − 3: √96) and their orders.
+func vectorMomentShapes(L, d int) (scale []float64, order []int) {
+	add := func(s float64, o int) {
+		scale = append(scale, s)
+		order = append(order, o)
+	}
+	for k := 0; k < min(L, 1)*d; k++ {
+		add(1, 1)
+	}
+	if L >= 2 {
+		for k := 0; k < d; k++ {
+			for l := k; l < d; l++ {
+				if k == l {
+					add(math.Sqrt2, 2)
+				} else {
+					add(1, 2)
+				}
+			}
+		}
+	}
+	if L >= 3 {
+		for k := 0; k < d; k++ {
+			add(math.Sqrt(15), 3)
+		}
+	}
+	if L >= 4 {
+		for k := 0; k < d; k++ {
+			add(math.Sqrt(96), 4)
+		}
+	}
+	return scale, order
 }
 
 // fillState sets, for from-state i, the log prior weights logq (length n)
