@@ -29,6 +29,7 @@ var badManifests = []struct {
 	{"moments-with-tauchen.yaml", ErrRule},
 	{"nodes-with-rouwenhorst.yaml", ErrRule},
 	{"floden-with-maxent.yaml", ErrRule},
+	{"matching-with-tauchen.yaml", ErrRule},
 	{"adda-cooper-fat-tails.yaml", ErrRule},
 	{"width-with-hermite.yaml", ErrRule},
 	{"t-nu-too-small.yaml", ErrRange},

@@ -40,6 +40,7 @@ type processSpec struct {
 	role                   processRole
 	name, kind             str
 	method, nodes, compare str
+	matching               str
 	states, moments, width num
 	floden                 toggle
 	spec                   kindSpec // nil when the kind is unknown
@@ -76,6 +77,7 @@ func (d *decoder) decodeProcess(n *yaml.Node, path string, role processRole) *pr
 	p.states = m.number("states")
 	p.moments = m.number("moments")
 	p.nodes = m.choice("nodes", solver.NodeRuleNames())
+	p.matching = m.choice("matching", solver.MatchingNames())
 	p.width = m.number("width")
 	p.floden = m.boolean("floden")
 	p.compare = m.choice("compare", append(solver.MethodNames(), "none"))
@@ -157,7 +159,7 @@ func (p *processSpec) check(r *reporter) bool {
 		return false
 	}
 	ok := p.spec.check(r, p.at)
-	if p.method.bad || p.nodes.bad || p.compare.bad {
+	if p.method.bad || p.nodes.bad || p.matching.bad || p.compare.bad {
 		// Already reported; rules that depend on them would only add noise.
 		return false
 	}
@@ -212,6 +214,15 @@ func (p *processSpec) check(r *reporter) bool {
 			ok = false
 		}
 		nodes, _ = solver.ParseNodeRule(p.nodes.v)
+	}
+
+	matching := solver.MatchExact
+	if p.matching.set {
+		if !maxent {
+			r.add(p.matching.at, ErrRule, "applies to method maxent only: %s solves no moment-matching problem", method)
+			ok = false
+		}
+		matching, _ = solver.ParseMatching(p.matching.v)
 	}
 
 	widthApplies := method == solver.Tauchen || (maxent && (nodes == solver.NodesLattice || nodes == solver.NodesGaussLegendre))
@@ -269,7 +280,7 @@ func (p *processSpec) check(r *reporter) bool {
 		return false
 	}
 	p.settings = solver.Settings{
-		States: int(p.states.v), Method: method, Nodes: nodes,
+		States: int(p.states.v), Method: method, Nodes: nodes, Matching: matching,
 		Width: p.width.v, Floden: p.floden.v && method == solver.TauchenHussey,
 	}
 	if maxent {
@@ -294,7 +305,7 @@ func (p *processSpec) checkComposite(r *reporter, kindOK bool) bool {
 		set bool
 		at  loc
 	}{{p.method.set, p.method.at}, {p.states.set || p.states.bad, p.states.at}, {p.moments.set || p.moments.bad, p.moments.at},
-		{p.nodes.set, p.nodes.at}, {p.width.set || p.width.bad, p.width.at}, {p.floden.set, p.floden.at}} {
+		{p.nodes.set, p.nodes.at}, {p.matching.set, p.matching.at}, {p.width.set || p.width.bad, p.width.at}, {p.floden.set, p.floden.at}} {
 		if at.set {
 			r.add(at.at, ErrRule, "%s", why)
 			ok = false
@@ -373,6 +384,11 @@ func (p *processSpec) canonicalSpec() object {
 	case solver.MaxEnt:
 		o["moments"] = s.Moments
 		o["nodes"] = s.Nodes.String()
+		// The exact policy, the default, is left out so that specs written
+		// before there was a choice keep their hashes.
+		if s.Matching != solver.MatchExact {
+			o["matching"] = s.Matching.String()
+		}
 		if s.Nodes == solver.NodesLattice || s.Nodes == solver.NodesGaussLegendre {
 			o["width"] = s.Width
 		}

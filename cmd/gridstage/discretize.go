@@ -44,6 +44,7 @@ var extraKinds []func() *cobra.Command
 type methodSettings struct {
 	states, moments int
 	method, nodes   string
+	matching        string
 	width           float64
 	floden          bool
 	compare         string
@@ -54,6 +55,7 @@ func (m *methodSettings) register(cmd *cobra.Command, withMethod bool) {
 	fs := cmd.Flags()
 	fs.IntVar(&m.states, "states", 9, "number of grid points (2 to 10000)")
 	fs.StringVar(&m.nodes, "nodes", "", nodesHelp)
+	fs.StringVar(&m.matching, "matching", "", matchingHelp)
 	if withMethod {
 		fs.IntVar(&m.moments, "moments", 0, "conditional moments to match exactly with maxent (default 4, fewer for heavy-tailed innovations)")
 		fs.Float64Var(&m.width, "width", 0, "half-width of lattice, gauss-legendre and tauchen grids in unconditional s.d. (default sqrt(states-1); 3 for tauchen)")
@@ -105,7 +107,29 @@ func (m *methodSettings) settings(cmd *cobra.Command) (solver.Settings, error) {
 	if m.floden && method != solver.TauchenHussey {
 		return s, badInput("--floden applies to --method tauchen-hussey only")
 	}
-	return solver.Settings{States: m.states, Moments: m.moments, Method: method, Nodes: nodes, Width: m.width, Floden: m.floden}, nil
+	matching, err := matchingPolicy(m.matching, method)
+	if err != nil {
+		return s, err
+	}
+	return solver.Settings{States: m.states, Moments: m.moments, Method: method, Nodes: nodes, Width: m.width, Floden: m.floden, Matching: matching}, nil
+}
+
+// matchingHelp is the help of --matching, shared by every discretize kind.
+const matchingHelp = "per-state matching policy (maxent only): exact (the default; the published method, fewer moments where the grid cannot carry them) or smooth (moments relaxed continuously, so the chain is smooth in the parameters: for estimation)"
+
+// matchingPolicy validates --matching; empty means the default, exact.
+func matchingPolicy(name string, method solver.Method) (solver.Matching, error) {
+	if name == "" {
+		return solver.MatchExact, nil
+	}
+	if err := choice("matching", name, solver.MatchingNames()); err != nil {
+		return 0, err
+	}
+	if method != solver.MaxEnt {
+		return 0, badInput("--matching applies to --method maxent only: %s solves no moment-matching problem", method)
+	}
+	m, _ := solver.ParseMatching(name)
+	return m, nil
 }
 
 // nodesHelp is the help of --nodes, shared by every discretize kind.
@@ -137,6 +161,9 @@ func (m *methodSettings) entry(cmd *cobra.Command, e map[string]any) map[string]
 	if method == "maxent" && m.nodes != "" {
 		e["nodes"] = m.nodes
 	}
+	if method == "maxent" && m.matching != "" {
+		e["matching"] = m.matching
+	}
 	if fs.Changed("moments") {
 		e["moments"] = m.moments
 	}
@@ -164,7 +191,7 @@ func (m *methodSettings) checkCompare() error {
 // paramFlags maps solver parameter names to the flags that set them.
 var paramFlags = map[string]string{
 	"rho": "rho", "sigma": "sigma", "mean": "mean", "states": "states",
-	"moments": "moments", "width": "width", "nodes": "nodes",
+	"moments": "moments", "width": "width", "nodes": "nodes", "matching": "matching",
 }
 
 var _ = fmt.Sprint

@@ -20,6 +20,7 @@ type varSettings struct {
 	states, moments int
 	method, axes    string
 	nodes, compare  string
+	matching        string
 	width           float64
 	json            bool
 }
@@ -74,6 +75,7 @@ VAR construction.`,
 	fs.StringVar(&vs.axes, "axes", "principal", "maxent grid orientation: principal (axes of the stationary covariance) or coordinate")
 	fs.IntVar(&vs.moments, "moments", 0, "maxent moment level: 1 means, 2 also covariances (default), 3 or 4 also marginal third and fourth moments")
 	fs.StringVar(&vs.nodes, "nodes", "", "placement of the grid points along each axis (maxent only): lattice (the default; equally spaced over ± width), gauss-hermite, gauss-legendre, or equal-mass (at quantiles)")
+	fs.StringVar(&vs.matching, "matching", "", matchingHelp)
 	fs.Float64Var(&vs.width, "width", 0, "half-width of each axis in stationary s.d. (default sqrt(states-1) for maxent, 3 for tauchen)")
 	fs.StringVar(&vs.compare, "compare", "", "baseline shown beside the chain: maxent, tauchen or none (default tauchen; maxent when --method is tauchen)")
 	fs.BoolVar(&vs.json, "json", false, "print one JSON object instead of tables")
@@ -117,8 +119,12 @@ func (v *varSettings) settings(cmd *cobra.Command, d int) (solver.Settings, erro
 			return s, err
 		}
 	}
+	matching, err := matchingPolicy(v.matching, method)
+	if err != nil {
+		return s, err
+	}
 	axes, _ := solver.ParseAxes(v.axes)
-	return solver.Settings{States: v.states, Method: method, Moments: v.moments, Nodes: nodes, Width: v.width, Axes: axes}, nil
+	return solver.Settings{States: v.states, Method: method, Moments: v.moments, Nodes: nodes, Width: v.width, Axes: axes, Matching: matching}, nil
 }
 
 // entry returns the process as a manifest entry: matrices as lists of
@@ -141,6 +147,9 @@ func (v *varSettings) entry(cmd *cobra.Command, p solver.VAR) map[string]any {
 		e["axes"] = v.axes
 		if v.nodes != "" {
 			e["nodes"] = v.nodes
+		}
+		if v.matching != "" {
+			e["matching"] = v.matching
 		}
 	}
 	if fs.Changed("moments") {
