@@ -80,9 +80,9 @@ func maxentRows(nodes, logW []float64, law conditional, L int, match Matching, t
 		order[k] = k + 1
 	}
 	pr := &stateProblem{
-		cols:  func(l int) int { return l },
-		scale: shockScales(law.Shock, L),
-		order: order,
+		cols:   func(l int) int { return l },
+		scale:  shockScales(law.Shock, L),
+		order:  order,
 		logq:   logq,
 		ladder: fallbackLadder(L),
 		at: func(l int) ([]float64, int) {

@@ -33,10 +33,10 @@ import "math"
 // backtracking line search; it reuses its buffers and is not safe for
 // concurrent use. The zero value is ready to use.
 type smoothDual struct {
-	a, p, aTry, pTry, shift   []float64
-	lam, grad, hess, chol     []float64
-	step, lamTry, regH        []float64
-	iters                     int
+	a, p, aTry, pTry, shift []float64
+	lam, grad, hess, chol   []float64
+	step, lamTry, regH      []float64
+	iters                   int
 }
 
 // smoothMaxIter bounds Newton iterations of the relaxed dual. The dual is
@@ -151,7 +151,7 @@ func (w *smoothDual) solve(logq, dev []float64, L int, b, c, tol, lam0, p []floa
 }
 
 // gradHess sets w.grad = E_p dev + r'(λ) and the lower triangle of
-// w.hess = Cov_p(dev) + diag r''(λ), with r'' kept in w.regH.
+// w.hess = Cov_p(dev) + diag r”(λ), with r” kept in w.regH.
 func (w *smoothDual) gradHess(dev []float64, n, L int, b, c []float64) {
 	clear(w.grad)
 	clear(w.hess)

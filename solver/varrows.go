@@ -74,9 +74,9 @@ func maxentVectorRows(grid, logW []float64, law gaussianVectorLaw, L int, match 
 	var ws wolfe
 	scale, order := vectorMomentShapes(L, d)
 	pr := &stateProblem{
-		cols:  func(l int) int { return vectorMomentCount(l, d) },
-		scale: scale,
-		order: order,
+		cols:   func(l int) int { return vectorMomentCount(l, d) },
+		scale:  scale,
+		order:  order,
 		logq:   logq,
 		ladder: vectorLadder(L),
 		at: func(l int) ([]float64, int) {
