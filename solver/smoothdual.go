@@ -151,7 +151,8 @@ func (w *smoothDual) solve(logq, dev []float64, L int, b, c, tol, lam0, p []floa
 }
 
 // gradHess sets w.grad = E_p dev + r'(λ) and the lower triangle of
-// w.hess = Cov_p(dev) + diag r”(λ), with r” kept in w.regH.
+// w.hess = Cov_p(dev) + diag h(λ), h the penalty's second derivative,
+// kept in w.regH.
 func (w *smoothDual) gradHess(dev []float64, n, L int, b, c []float64) {
 	clear(w.grad)
 	clear(w.hess)
