@@ -25,7 +25,7 @@ import (
 // The solver normalises each row by dividing by its floating-point sum, so
 // the stored probabilities sum to 1 up to rounding: about √N·2⁻⁵³ for N
 // states in practice (1e-14 at N = 10,000), and at worst N·2⁻⁵³ (1.1e-12
-// at the solver's 10,000-state cap, a bound no real row approaches because
+// at N = 10,000, five times the solver's cap, a bound no real row approaches because
 // the rounding errors of the quotients are independent). Verify adds the
 // row with compensated (Neumaier) summation, whose own error is about 2⁻⁵³
 // whatever N, so 1e-12 accepts every row the solver writes and rejects any

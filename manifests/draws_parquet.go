@@ -44,13 +44,11 @@ func (d *decoder) readParquet(t *drawTable, full string, at loc, path string, na
 		d.r.add(at, ErrFile, "cannot read %s as Parquet: %v", t.file, err)
 		return false
 	}
-	tbl, err := fr.ReadTable(context.Background())
+	schema, err := fr.Schema()
 	if err != nil {
 		d.r.add(at, ErrFile, "cannot read %s as Parquet: %v", t.file, err)
 		return false
 	}
-	defer tbl.Release()
-	schema := tbl.Schema()
 	cols := make([]string, schema.NumFields())
 	for i, fld := range schema.Fields() {
 		cols[i] = fld.Name
@@ -60,19 +58,61 @@ func (d *decoder) readParquet(t *drawTable, full string, at loc, path string, na
 	if !ok {
 		return false
 	}
+	// Only the columns in use are decoded (an ignored column may be text
+	// of any size), each must be numeric, and what they decode to is
+	// bounded before anything is decoded.
+	var indices []int
+	for c, u := range use {
+		if !u {
+			continue
+		}
+		if !isNumericType(schema.Field(c).Type) {
+			d.r.add(cellAt(-1, c), ErrType, "column %s of %s holds %s values: want numbers", shorten(cols[c], 40), t.file, schema.Field(c).Type)
+			return false
+		}
+		if len(pr.MetaData().Schema.Column(c).ColumnPath()) != 1 || pr.MetaData().Schema.NumColumns() != len(cols) {
+			d.r.add(at, ErrFile, "%s has nested columns: want a flat table of numbers", t.file)
+			return false
+		}
+		indices = append(indices, c)
+	}
+	var decoded int64
+	for g := 0; g < pr.NumRowGroups(); g++ {
+		rg := pr.MetaData().RowGroup(g)
+		for _, c := range indices {
+			cc, err := rg.ColumnChunk(c)
+			if err != nil {
+				d.r.add(at, ErrFile, "cannot read %s as Parquet: %v", t.file, err)
+				return false
+			}
+			decoded += max(cc.TotalUncompressedSize(), 0)
+		}
+	}
+	if limit := int64(len(indices)) * (maxJobs + 1) * 16; decoded > limit {
+		d.r.add(at, ErrRange, "%s: its %d columns in use decode to %d bytes, more than %d numbers of up to 8 bytes each can take (%d): the file is damaged or not a draw table",
+			t.file, len(indices), decoded, maxJobs, limit)
+		return false
+	}
+	groups := make([]int, pr.NumRowGroups())
+	for g := range groups {
+		groups[g] = g
+	}
+	tbl, err := fr.ReadRowGroups(context.Background(), indices, groups)
+	if err != nil {
+		d.r.add(at, ErrFile, "cannot read %s as Parquet: %v", t.file, err)
+		return false
+	}
+	defer tbl.Release()
 	nrows := int(tbl.NumRows())
 	if nrows == 0 {
 		d.r.add(at, ErrMissing, "%s has no rows: want one row per draw", t.file)
 		return false
 	}
 	t.rows = make([][]num, nrows)
-	for c := range cols {
-		if !use[c] {
-			continue
-		}
+	for k, c := range indices {
 		row := 0
 		cellPath := joinKey(path, cols[c]) // shared by the column's cells
-		for _, chunk := range tbl.Column(c).Data().Chunks() {
+		for _, chunk := range tbl.Column(k).Data().Chunks() {
 			for k := 0; k < chunk.Len(); k++ {
 				l := cellAt(row, c)
 				l.path = cellPath
@@ -87,6 +127,15 @@ func (d *decoder) readParquet(t *drawTable, full string, at loc, path string, na
 		}
 	}
 	return true
+}
+
+// isNumericType reports whether cellValue reads values of type t.
+func isNumericType(t arrow.DataType) bool {
+	switch t.ID() {
+	case arrow.FLOAT64, arrow.FLOAT32, arrow.INT64, arrow.INT32, arrow.INT16, arrow.INT8, arrow.UINT32, arrow.UINT16, arrow.UINT8:
+		return true
+	}
+	return false
 }
 
 // cellValue reads a numeric cell.

@@ -180,7 +180,7 @@ func (p *processSpec) check(r *reporter) bool {
 	maxent := method == solver.MaxEnt
 
 	if p.states.set {
-		ok = checkInt(r, p.states, 2, 10000) && ok
+		ok = checkInt(r, p.states, 2, solver.MaxStates) && ok
 	} else {
 		p.states.v = defaultStates
 	}

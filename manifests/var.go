@@ -183,7 +183,7 @@ func (v *varSpec) rules(r *reporter, p *processSpec) bool {
 }
 
 // maxTotalStates bounds the states of one chain, as the solver does.
-const maxTotalStates = 10000
+const maxTotalStates = solver.MaxStates
 
 // perAxisLimit is the largest N with N^d ≤ maxTotalStates.
 func perAxisLimit(d int) int {

@@ -102,8 +102,8 @@ func rangeText(lo, hi int) string {
 
 // checkStates validates the number of states.
 func checkStates(n int) error {
-	if n < 2 || n > 10000 {
-		return badParam("states", float64(n), "an integer from 2 to 10000")
+	if n < 2 || n > MaxStates {
+		return badParam("states", float64(n), "an integer from 2 to "+strconv.Itoa(MaxStates)+" (the bound that keeps a job within its stated time and memory)")
 	}
 	return nil
 }

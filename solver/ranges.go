@@ -31,6 +31,14 @@ const (
 	// in float64 succeeds and keeps about 4 correct digits up to
 	// 1/(d·2⁻⁵³) ≈ 1e15; 1e12 leaves a margin.
 	MaxCovCondition = 1e12
+	// MaxStates bounds the states of one chain (N, or N^d for a tensor
+	// grid). Measured on one core of a 2-core machine (issue 16), a chain
+	// of 2,000 states takes at most about 10 s (Rouwenhorst's recursion;
+	// maximum entropy about 1.5 s, a 2-D VAR at 44 per axis about 7 s) and
+	// under 300 MB, and `discretize --json` with a baseline under 1.2 GB;
+	// time grows as N² to N³ and memory as N², so the former 10,000 took
+	// minutes and gigabytes.
+	MaxStates = 2000
 )
 
 // checkPersistence refuses |ρ| > MaxPersistence.

@@ -7,9 +7,13 @@ import "math"
 // matrix [[p, 1−p], [1−q, q]], each step embeds the previous matrix four
 // times with weights p, 1−p, 1−q, q and halves the interior rows.
 func rouwenhorstMatrix(n int, p, q float64, trans []float64) {
-	prev := []float64{p, 1 - p, 1 - q, q}
+	// Two buffers of n×n, used in turn, instead of a new matrix per step:
+	// the same arithmetic with O(n²) memory rather than O(n³) allocated.
+	bufs := [2][]float64{make([]float64, n*n), make([]float64, n*n)}
+	prev := append(bufs[0][:0], p, 1-p, 1-q, q)
 	for m := 3; m <= n; m++ {
-		cur := make([]float64, m*m)
+		cur := bufs[m%2][:m*m]
+		clear(cur)
 		k := m - 1 // size of prev
 		for r := 0; r < k; r++ {
 			for c := 0; c < k; c++ {

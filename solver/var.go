@@ -13,7 +13,7 @@ const MaxVARDim = 4
 
 // maxVectorStates bounds the total number of states N^d of a vector chain,
 // the same bound as for univariate chains.
-const maxVectorStates = 10000
+const maxVectorStates = MaxStates
 
 // VAR is the first-order vector autoregression
 //
@@ -176,7 +176,7 @@ func checkTensorStates(n, d int) error {
 	for k := 0; k < d; k++ {
 		total *= n
 		if total > maxVectorStates {
-			return badParam("states", float64(n), "at most "+strconv.Itoa(int(math.Floor(math.Pow(maxVectorStates, 1/float64(d))+1e-9)))+" per axis in dimension "+strconv.Itoa(d)+" (at most 10000 states in all)")
+			return badParam("states", float64(n), "at most "+strconv.Itoa(int(math.Floor(math.Pow(maxVectorStates, 1/float64(d))+1e-9)))+" per axis in dimension "+strconv.Itoa(d)+" (at most "+strconv.Itoa(MaxStates)+" states in all)")
 		}
 	}
 	return nil

@@ -5,6 +5,7 @@ import (
 	"io"
 	"math"
 	"slices"
+	"strconv"
 	"strings"
 	"text/tabwriter"
 
@@ -110,7 +111,7 @@ func newAccuracyAR1Cmd() *cobra.Command {
 					return badInput("--%s is required", f)
 				}
 			}
-			if err := intRange("states", states, 2, 10000); err != nil {
+			if err := intRange("states", states, 2, solver.MaxStates); err != nil {
 				return err
 			}
 			cfg, ms, err := sf.config(methods)
@@ -142,7 +143,7 @@ func newAccuracyAR1Cmd() *cobra.Command {
 	fs.Float64Var(&rho, "rho", 0, "persistence, in (-1, 1) (required)")
 	fs.Float64Var(&sigma, "sigma", 0, "innovation standard deviation, > 0 (required)")
 	fs.Float64Var(&mean, "mean", 0, "unconditional mean")
-	fs.IntVar(&states, "states", 9, "grid points (2 to 10000)")
+	fs.IntVar(&states, "states", 9, "grid points (2 to "+strconv.Itoa(solver.MaxStates)+")")
 	sf.register(fs, methods)
 	return cmd
 }

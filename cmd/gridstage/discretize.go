@@ -2,6 +2,7 @@ package main
 
 import (
 	"fmt"
+	"strconv"
 
 	"github.com/spf13/cobra"
 
@@ -53,7 +54,7 @@ type methodSettings struct {
 
 func (m *methodSettings) register(cmd *cobra.Command, withMethod bool) {
 	fs := cmd.Flags()
-	fs.IntVar(&m.states, "states", 9, "number of grid points (2 to 10000)")
+	fs.IntVar(&m.states, "states", 9, "number of grid points (2 to "+strconv.Itoa(solver.MaxStates)+")")
 	fs.StringVar(&m.nodes, "nodes", "", nodesHelp)
 	fs.StringVar(&m.matching, "matching", "", matchingHelp)
 	if withMethod {
@@ -74,7 +75,7 @@ func (m *methodSettings) register(cmd *cobra.Command, withMethod bool) {
 // settings validates the shared flags and converts them.
 func (m *methodSettings) settings(cmd *cobra.Command) (solver.Settings, error) {
 	var s solver.Settings
-	if err := intRange("states", m.states, 2, 10000); err != nil {
+	if err := intRange("states", m.states, 2, solver.MaxStates); err != nil {
 		return s, err
 	}
 	if cmd.Flags().Changed("moments") {

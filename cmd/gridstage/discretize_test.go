@@ -138,7 +138,7 @@ func TestDiscretizeBadInput(t *testing.T) {
 		{[]string{"discretize", "ar1", "--rho", "NaN", "--sigma", "0.1"}, "--rho NaN is out of range"},
 		{[]string{"discretize", "ar1", "--rho", "0.5", "--sigma", "0"}, "--sigma 0 is out of range: want finite and > 0"},
 		{[]string{"discretize", "ar1", "--rho", "0.5", "--sigma", "-1"}, "--sigma -1 is out of range"},
-		{[]string{"discretize", "ar1", "--rho", "0.5", "--sigma", "1", "--states", "1"}, "--states 1 is out of range: want an integer from 2 to 10000"},
+		{[]string{"discretize", "ar1", "--rho", "0.5", "--sigma", "1", "--states", "1"}, "--states 1 is out of range: want an integer from 2 to 2000"},
 		{[]string{"discretize", "ar1", "--rho", "0.5", "--sigma", "1", "--moments", "9"}, "--moments 9 is out of range: want an integer from 1 to 8"},
 		{[]string{"discretize", "ar1", "--rho", "0.5", "--sigma", "1", "--method", "rouwenhorst", "--moments", "4"}, "--moments applies to --method maxent only"},
 		{[]string{"discretize", "ar1", "--rho", "0.5", "--sigma", "1", "--innovation", "t", "--nu", "3", "--moments", "4"}, "--moments 4 is out of range: want an integer from 1 to 2, since the t innovation has no finite moment of order 3"},

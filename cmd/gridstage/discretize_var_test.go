@@ -98,7 +98,7 @@ func TestDiscretizeVARBadInput(t *testing.T) {
 		{[]string{"--coef", "0.5,0,0,0.5", "--cov", "1,0,0,NaN"}, "--cov entry 4 = NaN is out of range"},
 		{[]string{"--cov", "1"}, "--coef is required"},
 		{append(ok, "--intercept", "1"), "--intercept has 1 entries: want 2"},
-		{append(ok, "--states", "101"), "--states 101 is out of range: want an integer from 2 to 100 per axis for a 2-dimensional VAR"},
+		{append(ok, "--states", "101"), "--states 101 is out of range: want an integer from 2 to 44 per axis for a 2-dimensional VAR"},
 		{append(ok, "--states", "1"), "--states 1 is out of range"},
 		{append(ok, "--method", "rouwenhorst"), `--method "rouwenhorst" is not recognised: want one of maxent, tauchen`},
 		{append(ok, "--method", "tauchen", "--axes", "coordinate"), "--axes applies to --method maxent only"},

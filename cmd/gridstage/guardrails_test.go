@@ -73,3 +73,27 @@ processes:
 		t.Errorf("exit %d, %q", code, errOut)
 	}
 }
+
+// Issue 16 case 9: sizes whose jobs once ran for minutes are refused with
+// the bound (solver.MaxStates; its time and memory are stated there and in
+// the README), on the command line and in manifests alike.
+func TestStateLimits(t *testing.T) {
+	for _, tc := range []struct {
+		args []string
+		want string
+	}{
+		{[]string{"discretize", "ar1", "--rho", "0.9", "--sigma", "0.1", "--states", "5000"}, "--states 5000 is out of range: want an integer from 2 to 2000"},
+		{[]string{"discretize", "var", "--coef", "0.5,0,0,0,0,0.5,0,0,0,0,0.5,0,0,0,0,0.5", "--cov", "1,0,0,0,0,1,0,0,0,0,1,0,0,0,0,1", "--states", "9"},
+			"want an integer from 2 to 6 per axis for a 4-dimensional VAR (at most 2000 states in all)"},
+	} {
+		if code, _, errOut := run(t, tc.args...); code != 2 || !strings.Contains(errOut, tc.want) {
+			t.Errorf("%v: exit %d, %q; want exit 2 with %q", tc.args, code, errOut, tc.want)
+		}
+	}
+	dir := t.TempDir()
+	m := filepath.Join(dir, "m.yaml")
+	os.WriteFile(m, []byte("run: big\nprocesses:\n  - {name: inc, kind: ar1, rho: 0.9, sigma: 0.1, states: 5000}\n"), 0o644)
+	if code, _, errOut := run(t, "run", m, "--out", filepath.Join(dir, "out"), "--cache", "off"); code != 2 || !strings.Contains(errOut, "5000 is out of range: want an integer from 2 to 2000") {
+		t.Errorf("manifest: exit %d, %q", code, errOut)
+	}
+}

@@ -98,7 +98,7 @@ func (f *varFlags) process(cmd *cobra.Command) (solver.VAR, error) {
 }
 
 // axisStates validates --states for a d-dimensional tensor grid: 2 to
-// ⌊10000^(1/d)⌋ points per axis, at most 10000 states in all.
+// ⌊MaxStates^(1/d)⌋ points per axis, at most solver.MaxStates in all.
 func axisStates(n, d int) error {
 	hi := 1
 	for {
@@ -106,13 +106,13 @@ func axisStates(n, d int) error {
 		for k := 0; k < d; k++ {
 			next *= hi + 1
 		}
-		if next > 10000 {
+		if next > solver.MaxStates {
 			break
 		}
 		hi++
 	}
 	if n < 2 || n > hi {
-		return badInput("--states %d is out of range: want an integer from 2 to %d per axis for a %d-dimensional VAR (at most 10000 states in all)", n, hi, d)
+		return badInput("--states %d is out of range: want an integer from 2 to %d per axis for a %d-dimensional VAR (at most %d states in all)", n, hi, d, solver.MaxStates)
 	}
 	return nil
 }
