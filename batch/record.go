@@ -189,7 +189,7 @@ func checkRecordHash(b []byte) error {
 		return fmt.Errorf("it does not end with its record hash (truncated, edited, or written by an older gridstage)")
 	}
 	i := bytes.LastIndex(b, []byte(recordHashLead))
-	if i < 0 {
+	if i < 0 || i+len(recordHashLead) > len(b)-len(recordHashTail) {
 		return fmt.Errorf("it has no record hash (edited, or written by an older gridstage)")
 	}
 	got := b[i+len(recordHashLead) : len(b)-len(recordHashTail)]

@@ -105,8 +105,8 @@ func Run(ctx context.Context, m *manifests.Manifest, opt Options) (*Result, erro
 	if dir == "" {
 		dir = m.OutputDir()
 	}
-	if err := os.MkdirAll(dir, 0o755); err != nil {
-		return nil, fmt.Errorf("batch: output folder: %w", err)
+	if err := prepareOutputFolder(dir); err != nil {
+		return nil, err
 	}
 	format := formats.Parquet
 	if m.Output.Format == manifests.FormatArrow {
@@ -355,4 +355,51 @@ func removeRecord(dir string) error {
 	}
 	defer d.Close()
 	return d.Sync()
+}
+
+// OutputFolderError reports an output location that cannot hold the
+// output: bad input, not a failed job.
+type OutputFolderError struct {
+	Dir    string
+	Reason string
+}
+
+func (e *OutputFolderError) Error() string {
+	return fmt.Sprintf("the output folder %s cannot be used: %s", shorten(e.Dir, 200), e.Reason)
+}
+
+// prepareOutputFolder creates dir if needed and checks that a file can be
+// created in it (a regular file, a dangling link or a read-only system
+// folder such as /proc/self is refused here rather than half-way).
+func prepareOutputFolder(dir string) error {
+	if fi, err := os.Stat(dir); err == nil && !fi.IsDir() {
+		return &OutputFolderError{Dir: dir, Reason: "it exists and is not a folder"}
+	} else if err != nil && !errors.Is(err, fs.ErrNotExist) {
+		return &OutputFolderError{Dir: dir, Reason: "it cannot be read (" + plainReason(err) + ")"}
+	}
+	if fi, err := os.Lstat(dir); err == nil && fi.Mode()&fs.ModeSymlink != 0 {
+		if _, err := os.Stat(dir); err != nil {
+			return &OutputFolderError{Dir: dir, Reason: "it is a link to something that does not exist"}
+		}
+	}
+	if err := os.MkdirAll(dir, 0o755); err != nil {
+		return &OutputFolderError{Dir: dir, Reason: "it cannot be created (" + plainReason(err) + ")"}
+	}
+	probe, err := os.CreateTemp(dir, ".gridstage-probe-*")
+	if err != nil {
+		return &OutputFolderError{Dir: dir, Reason: "no file can be created in it (" + plainReason(err) + ")"}
+	}
+	probe.Close()
+	os.Remove(probe.Name())
+	return nil
+}
+
+// plainReason is the operating system's reason without the path it
+// repeats ("permission denied", "not a directory").
+func plainReason(err error) string {
+	var pe *fs.PathError
+	if errors.As(err, &pe) {
+		return pe.Err.Error()
+	}
+	return err.Error()
 }

@@ -126,7 +126,11 @@ func (d *decoder) header(t *drawTable, cols []string, at func(i int) loc, atFile
 	seen := map[string]int{}
 	for i, c := range cols {
 		if j, dup := seen[c]; dup {
-			d.r.add(at(i), ErrDuplicate, "column %q repeats column %d", c, j+1)
+			if isColumnName(c) {
+				d.r.add(at(i), ErrDuplicate, "column %q repeats column %d", c, j+1)
+			} else {
+				d.r.add(at(i), ErrDuplicate, "column %d repeats the header of column %d", i+1, j+1)
+			}
 			ok = false
 			continue
 		}
@@ -137,7 +141,13 @@ func (d *decoder) header(t *drawTable, cols []string, at func(i int) loc, atFile
 			use[i] = true
 			t.columns = append(t.columns, c)
 		default:
-			d.r.add(at(i), ErrUnknown, "column %q is not a parameter of this process: %s (or list it under ignore)", c, hint(c, names))
+			if !isColumnName(c) {
+				// Not a name a table of draws would carry: say so without
+				// repeating it (the "table" may be a link to another file).
+				d.r.add(at(i), ErrUnknown, "column %d of %s has a header that is not a parameter name (not shown: want letters, digits, _ . - only): is it a draw table?", i+1, t.file)
+			} else {
+				d.r.add(at(i), ErrUnknown, "column %q is not a parameter of this process: %s (or list it under ignore)", c, hint(c, names))
+			}
 			ok = false
 		}
 	}
@@ -227,6 +237,11 @@ func (d *decoder) readCSV(t *drawTable, full string, at loc, path string, names,
 			l := cellAt(i)
 			l.path = cellPaths[i]
 			text := strings.TrimSpace(cell)
+			if p := rangeProblem(text); p != "" {
+				d.r.add(l, ErrRange, "%s %s", text, p)
+				good = false
+				continue
+			}
 			v, err := strconv.ParseFloat(text, 64)
 			if err != nil {
 				d.r.add(l, ErrType, "%q is not a number: want a number in column %s", text, cols[i])
@@ -245,4 +260,19 @@ func (d *decoder) readCSV(t *drawTable, full string, at loc, path string, names,
 		d.r.add(at, ErrMissing, "%s has a header but no rows: want one row per draw", t.file)
 	}
 	return len(t.rows) > 0 && badRows == 0
+}
+
+// isColumnName reports whether a header cell looks like a parameter name
+// (at most 64 letters, digits, '_', '.', '-' or '[],' as in coef[1,2]),
+// and so may be repeated in a message.
+func isColumnName(c string) bool {
+	if c == "" || len(c) > 64 {
+		return false
+	}
+	for _, r := range c {
+		if !(r >= 'a' && r <= 'z' || r >= 'A' && r <= 'Z' || r >= '0' && r <= '9' || strings.ContainsRune("_.-[],", r)) {
+			return false
+		}
+	}
+	return true
 }

@@ -6,6 +6,7 @@ import (
 	"sort"
 	"strconv"
 	"strings"
+	"unicode/utf8"
 )
 
 // Sentinel errors classify each Error; test with errors.Is.
@@ -100,6 +101,15 @@ type reporter struct {
 }
 
 func (r *reporter) add(at loc, kind error, format string, args ...any) {
+	for i, a := range args {
+		switch v := a.(type) {
+		case string:
+			args[i] = shorten(v, maxEcho)
+		case fmt.Stringer:
+			args[i] = shorten(v.String(), maxEcho)
+		}
+	}
+	at.path = shorten(at.path, 2*maxEcho)
 	e := &Error{Pos: at.pos, Field: at.path, Msg: fmt.Sprintf(format, args...), Err: kind}
 	key := e.Error()
 	if r.seen == nil {
@@ -151,4 +161,22 @@ func (r *reporter) err() error {
 		out = append(out, &Error{Pos: Pos{File: last.Pos.File}, Msg: fmt.Sprintf("%d more errors not shown", r.dropped), Err: last.Err})
 	}
 	return out
+}
+
+// maxEcho bounds how much of any one value an error message repeats (lists
+// of allowed keys fit): a 5 MB
+// cell or a 100 KB name is shown by its start and its length.
+const maxEcho = 200
+
+// shorten returns s cut to at most n bytes (at a UTF-8 boundary) with its
+// full length noted, or s itself when it is short enough.
+func shorten(s string, n int) string {
+	if len(s) <= n {
+		return s
+	}
+	cut := n
+	for cut > 0 && !utf8.RuneStart(s[cut]) {
+		cut--
+	}
+	return fmt.Sprintf("%s… (%d bytes in all)", s[:cut], len(s))
 }

@@ -76,6 +76,15 @@ func (m *Manifest) OutputDir() string {
 // (draw tables, the output folder) are resolved against its folder. Errors
 // about the manifest are an ErrorList.
 func Load(path string) (*Manifest, error) {
+	// A FIFO or device would block the open or never end: refuse anything
+	// but a regular file, as for draw tables.
+	if fi, err := os.Stat(path); err == nil && !fi.Mode().IsRegular() {
+		what := "not a regular file"
+		if fi.IsDir() {
+			what = "a folder"
+		}
+		return nil, ErrorList{{Pos: Pos{File: path}, Msg: "cannot read the manifest: it is " + what + ": want a YAML file", Err: ErrFile}}
+	}
 	f, err := os.Open(path)
 	if err != nil {
 		return nil, ErrorList{{Pos: Pos{File: path}, Msg: "cannot read the manifest: " + pathErr(err), Err: ErrFile}}

@@ -261,6 +261,12 @@ func (m *mapping) number(key string) num {
 // number decodes a scalar node holding a number.
 func (d *decoder) number(n *yaml.Node, path string) num {
 	at := d.at(n, path)
+	if n.Kind == yaml.ScalarNode && (n.Tag == "!!str" || n.Tag == "!!float") {
+		if p := rangeProblem(n.Value); p != "" {
+			d.r.add(at, ErrRange, "%s %s", n.Value, p)
+			return num{at: at, bad: true}
+		}
+	}
 	if n.Kind != yaml.ScalarNode || (n.Tag != "!!int" && n.Tag != "!!float") {
 		d.r.add(at, ErrType, "the value is %s: want a number", describe(n))
 		return num{at: at, bad: true}

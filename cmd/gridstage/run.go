@@ -104,6 +104,10 @@ On a Slurm array job the share of jobs is taken from the array variables;
 			if res != nil {
 				printRunSummary(cmd.OutOrStdout(), m, res, time.Since(start))
 			}
+			var folderErr *batch.OutputFolderError
+			if errors.As(err, &folderErr) {
+				return badInput("%v", err)
+			}
 			if err != nil {
 				return &exitCodeError{code: exitFailure, err: err}
 			}
