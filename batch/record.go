@@ -30,6 +30,9 @@ type JobRecord struct {
 	SpecHash  string `json:"spec_hash"`
 	ChainHash string `json:"chain_hash,omitempty"`
 	Status    string `json:"status"`
+	// AutoStates is the number of states chosen by states: auto (the
+	// spec holds it); absent when the manifest gave the number.
+	AutoStates int `json:"auto_states,omitempty"`
 	// Fallbacks counts states that matched fewer moments than requested.
 	Fallbacks int    `json:"fallback_states"`
 	Error     string `json:"error,omitempty"`

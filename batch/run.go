@@ -60,22 +60,26 @@ type Result struct {
 	// complete output, so nothing was solved or written.
 	UpToDate bool
 	// Jobs counts the jobs of the run (of its shard) and FallbackJobs those
-	// with states that matched fewer moments than requested.
-	Jobs, FallbackJobs int
+	// with states that matched fewer moments than requested; ShortJobs
+	// counts those among them whose grid does not carry the moments
+	// (manifests.Solution.Carries: a state holding at least 0.1 % of the
+	// stationary mass fell back). Up-to-date runs leave ShortJobs 0.
+	Jobs, FallbackJobs, ShortJobs int
 	// Stale, when not empty, says why output of the same manifest already
 	// in the folder was not taken as up to date (a file changed, the
 	// record is damaged) and the run solved again.
 	Stale string
 	// Advice holds, when Options.Advise is set, the grid advice of every
-	// process with fallback jobs, in manifest order.
+	// process with ShortJobs, in manifest order.
 	Advice []ProcessAdvice
 }
 
 // ProcessAdvice is the grid advice of one process: computed for its job
-// with the most states that fell back (the first such in job order).
+// with the most states that fell back among those whose grid does not
+// carry the moments (the first such in job order).
 type ProcessAdvice struct {
 	Process string
-	// Jobs counts the process's jobs with fallback states.
+	// Jobs counts the process's jobs whose grid does not carry the moments.
 	Jobs int
 	// Worst is that job, with States of its chain states falling back.
 	Worst     manifests.Job
@@ -159,7 +163,7 @@ func Run(ctx context.Context, m *manifests.Manifest, opt Options) (*Result, erro
 	recordOf := func(k int) JobRecord {
 		j := m.Jobs[jobs[k]]
 		return JobRecord{Index: jobs[k], Process: j.Process, Point: j.Point, Params: Params(j.Params),
-			SpecHash: j.SpecHash, Status: runner.NotRun.String()}
+			SpecHash: j.SpecHash, AutoStates: j.AutoStates, Status: runner.NotRun.String()}
 	}
 
 	var cachedCount atomic.Int64
@@ -217,8 +221,11 @@ func Run(ctx context.Context, m *manifests.Manifest, opt Options) (*Result, erro
 		rec.Fallbacks = v.sol.Fallbacks()
 		if rec.Fallbacks > 0 {
 			res.FallbackJobs++
-			if opt.Advise {
-				noteWorst(worst, job, v.sol, rec.Fallbacks)
+			if !v.sol.Carries() {
+				res.ShortJobs++
+				if opt.Advise {
+					noteWorst(worst, job, v.sol, rec.Fallbacks)
+				}
 			}
 			log.Debug("states fell back to fewer moments", "process", job.Process, "point", job.Point,
 				"states", rec.Fallbacks, "of", v.sol.States())

@@ -15,23 +15,29 @@ import (
 // advised component by component, for those that fall back. It solves
 // one chain per candidate: call it for warnings, not in inner loops.
 func (p Problem) Advise(limit int) (string, error) {
+	if pm, ok := p.Model.(productModel); ok {
+		return pm.advise(limit)
+	}
+	a, err := p.advice(limit)
+	return a.String(), err
+}
+
+// advice searches the grids of a process that is not a product.
+func (p Problem) advice(limit int) (solver.Advice, error) {
 	s := p.adviceSettings()
 	switch {
 	case p.AgeModel != nil:
 		lc, ok := p.AgeModel.(lifecycleModel)
 		if !ok {
-			return "", fmt.Errorf("manifests: no grid advice for %T", p.AgeModel)
+			return solver.Advice{}, fmt.Errorf("manifests: no grid advice for %T", p.AgeModel)
 		}
-		a, err := lc.LifeCycle.Advise(s, limit)
-		return a.String(), err
+		return lc.LifeCycle.Advise(s, limit)
 	case p.Model == nil:
-		return "", errAgeModel
+		return solver.Advice{}, errAgeModel
+	case isProduct(p.Model):
+		return solver.Advice{}, fmt.Errorf("manifests: a product is advised component by component")
 	}
-	if pm, ok := p.Model.(productModel); ok {
-		return pm.advise(limit)
-	}
-	a, err := adviseModel(p.Model, s, limit)
-	return a.String(), err
+	return adviseModel(p.Model, s, limit)
 }
 
 // adviceSettings returns the settings the search starts from: a width
@@ -109,6 +115,9 @@ func (p Problem) FallbackAdvice(sol Solution, limit int) string {
 	a, err := p.Advise(limit)
 	if err != nil {
 		return "no grid advice: " + err.Error()
+	}
+	if strings.HasPrefix(a, "no grid") {
+		a += " (ask for fewer moments, or for more states than the cap)"
 	}
 	return a
 }

@@ -24,6 +24,8 @@ var badManifests = []struct {
 	{"states-too-few.yaml", ErrRange},
 	{"states-fraction.yaml", ErrRange},
 	{"states-text.yaml", ErrType},
+	{"states-auto-tauchen.yaml", ErrRule},
+	{"states-cap-without-auto.yaml", ErrRule},
 	{"rho-quoted.yaml", ErrType},
 	{"moments-too-many.yaml", ErrRange},
 	{"moments-with-tauchen.yaml", ErrRule},

@@ -29,6 +29,9 @@ type Job struct {
 	Canonical []byte
 	// SpecHash is the hex SHA-256 over version.Numeric and Canonical.
 	SpecHash string
+	// AutoStates is the number of states chosen by states: auto (the
+	// canonical spec holds it as states); 0 when the manifest gave it.
+	AutoStates int
 
 	// src rebuilds the job's checked spec when Build asks for it, so that
 	// a large sweep keeps one spec per process, not one per sweep point.
@@ -58,6 +61,7 @@ func (j Job) checked() (*processSpec, error) {
 	q := j.src.written.clone()
 	q.setPoint(j.Point)
 	r := &reporter{}
+	q.autoN = j.AutoStates
 	if !q.check(r) {
 		// The point passed this check when the manifest was parsed.
 		return nil, fmt.Errorf("manifests: job %s/%d no longer checks: %v", j.Process, j.Point, r.err())
@@ -100,6 +104,11 @@ func (j Job) Build() (Problem, error) {
 	if err != nil {
 		return Problem{}, err
 	}
+	return q.problem(), nil
+}
+
+// problem returns the solver inputs of a checked process.
+func (q *processSpec) problem() Problem {
 	p := Problem{Settings: q.settings, DefaultWidth: q.defaultWidth()}
 	if ak, ok := q.spec.(ageKind); ok {
 		p.AgeModel = ak.ageModel()
@@ -110,7 +119,7 @@ func (j Job) Build() (Problem, error) {
 		b := *q.baseline
 		p.Baseline = &b
 	}
-	return p, nil
+	return p
 }
 
 // errAgeModel is returned for a single chain of a life-cycle process.
@@ -266,7 +275,7 @@ func expand(r *reporter, p *processSpec) []Job {
 	}
 	if p.sweep == nil {
 		q := p.clone()
-		if !q.check(r) {
+		if !q.check(r) || !q.resolveAuto(r) {
 			return nil
 		}
 		return []Job{newJob(q, 0, nil, &jobSource{fixed: q})}
@@ -291,7 +300,7 @@ func expand(r *reporter, p *processSpec) []Job {
 	for point := 0; point < n; point++ {
 		q := p.clone()
 		params := q.setPoint(point)
-		if !q.check(r) {
+		if !q.check(r) || !q.resolveAuto(r) {
 			good = false
 			continue
 		}
@@ -379,5 +388,5 @@ func drawColumns(t *drawTable) int {
 func newJob(q *processSpec, point int, params []Param, src *jobSource) Job {
 	canon := encodeCanonical(q.canonicalSpec())
 	return Job{Process: q.name.v, Kind: q.kind.v, Point: point, Params: params,
-		Canonical: canon, SpecHash: SpecHash(canon), src: src}
+		Canonical: canon, SpecHash: SpecHash(canon), AutoStates: q.autoN, src: src}
 }

@@ -288,7 +288,7 @@ func ParseSpec(canonical []byte) (Job, error) {
 		return Job{}, d.r.err()
 	}
 	q := p.clone()
-	if !q.check(d.r) {
+	if !q.check(d.r) || !q.resolveAuto(d.r) {
 		return Job{}, d.r.err()
 	}
 	return newJob(q, 0, nil, &jobSource{fixed: q}), nil

@@ -288,7 +288,7 @@ func TestDrawsHeaderBlanks(t *testing.T) {
 func TestParseSpecErrors(t *testing.T) {
 	cases := []struct{ spec, want string }{
 		{`{"kind":"ar1","rho":2,"sigma":0.1}`, `canonical spec:1:21: rho: 2 is out of range: want a number in (-1, 1)`},
-		{`{"kind":"ar1","rho":0.5,"sigma":0.1,"name":"x"}`, `canonical spec:1:37: name: unknown key: want one of kind, method, states, moments, nodes, matching, width, floden, compare, rho, sigma, mean, innovation, sweep`},
+		{`{"kind":"ar1","rho":0.5,"sigma":0.1,"name":"x"}`, `canonical spec:1:37: name: unknown key: want one of kind, method, states, states_cap, moments, nodes, matching, width, floden, compare, rho, sigma, mean, innovation, sweep`},
 		{`{"kind":"ar1","rho":0.5,"sigma":0.1,"sweep":{}}`, `canonical spec:1:45: sweep: a canonical spec has no sweep`},
 		{`not json {`, `canonical spec:1:1: the value is "not json {" (text): want a mapping describing a process`},
 		{`{"kind": [}`, `canonical spec:1:1: invalid YAML: did not find expected node content`},

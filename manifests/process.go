@@ -43,8 +43,13 @@ type processSpec struct {
 	matching               str
 	states, moments, width num
 	floden                 toggle
-	spec                   kindSpec // nil when the kind is unknown
-	sweep                  *sweepSpec
+	// auto is set by states: auto, and statesCap by states_cap; autoN is
+	// the number of states the grid search chose (0 before it ran).
+	auto      toggle
+	statesCap num
+	autoN     int
+	spec      kindSpec // nil when the kind is unknown
+	sweep     *sweepSpec
 
 	// Filled by check.
 	settings solver.Settings
@@ -74,7 +79,8 @@ func (d *decoder) decodeProcess(n *yaml.Node, path string, role processRole) *pr
 		m.missing("kind", "one of "+strings.Join(kindNames(), ", "))
 	}
 	p.method = m.choice("method", solver.MethodNames())
-	p.states = m.number("states")
+	p.states, p.auto = m.statesValue()
+	p.statesCap = m.number("states_cap")
 	p.moments = m.number("moments")
 	p.nodes = m.choice("nodes", solver.NodeRuleNames())
 	p.matching = m.choice("matching", solver.MatchingNames())
@@ -179,9 +185,14 @@ func (p *processSpec) check(r *reporter) bool {
 	}
 	maxent := method == solver.MaxEnt
 
-	if p.states.set {
+	ok = p.checkAuto(r, method) && ok
+	switch {
+	case p.autoN > 0:
+		p.states.v = float64(p.autoN)
+	case p.states.set:
 		ok = checkInt(r, p.states, 2, solver.MaxStates) && ok
-	} else {
+	default:
+		// With states: auto, a provisional value until the search runs.
 		p.states.v = defaultStates
 	}
 
@@ -304,7 +315,8 @@ func (p *processSpec) checkComposite(r *reporter, kindOK bool) bool {
 	for _, at := range []struct {
 		set bool
 		at  loc
-	}{{p.method.set, p.method.at}, {p.states.set || p.states.bad, p.states.at}, {p.moments.set || p.moments.bad, p.moments.at},
+	}{{p.method.set, p.method.at}, {p.states.set || p.states.bad || p.auto.set, p.states.at}, {p.statesCap.set || p.statesCap.bad, p.statesCap.at},
+		{p.moments.set || p.moments.bad, p.moments.at},
 		{p.nodes.set, p.nodes.at}, {p.matching.set, p.matching.at}, {p.width.set || p.width.bad, p.width.at}, {p.floden.set, p.floden.at}} {
 		if at.set {
 			r.add(at.at, ErrRule, "%s", why)

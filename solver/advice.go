@@ -60,9 +60,9 @@ func (a Advice) String() string {
 	case a.Width > 0:
 		return fmt.Sprintf("no grid of up to %d states with %s carries them in %s; width %.4g at the requested number of states does", a.Cap, a.Grid, a.mass(), a.Width)
 	case a.WidthRange[1] > 0:
-		return fmt.Sprintf("no grid of up to %d states with %s carries them in %s, nor does any width from %.4g to %.4g at the requested number of states: raise the cap, or ask for fewer moments", a.Cap, a.Grid, a.mass(), a.WidthRange[0], a.WidthRange[1])
+		return fmt.Sprintf("no grid of up to %d states with %s carries them in %s, nor does any width from %.4g to %.4g at the requested number of states", a.Cap, a.Grid, a.mass(), a.WidthRange[0], a.WidthRange[1])
 	}
-	return fmt.Sprintf("no grid of up to %d states with %s carries them in %s: raise the cap, or ask for fewer moments", a.Cap, a.Grid, a.mass())
+	return fmt.Sprintf("no grid of up to %d states with %s carries them in %s", a.Cap, a.Grid, a.mass())
 }
 
 // Carries reports whether the maximum-entropy chain c matches all its

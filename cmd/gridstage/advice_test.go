@@ -92,3 +92,41 @@ processes:
 		t.Errorf("the report's verdicts carry no grid advice")
 	}
 }
+
+// TestStatesAutoFlag: --states auto chooses the advised number (68 for
+// rho 0.99, sigma 0.1, as solver.TestAdviceBothDirections finds), and the
+// chain's spec hash is that of --states 68; bad uses exit 2.
+func TestStatesAutoFlag(t *testing.T) {
+	var got [2]struct {
+		SpecHash   string `json:"spec_hash"`
+		AutoStates int    `json:"auto_states"`
+		Grid       [][]float64
+	}
+	for k, states := range []string{"auto", "68"} {
+		code, out, errOut := run(t, "discretize", "ar1", "--rho", "0.99", "--sigma", "0.1", "--states", states, "--json")
+		if code != 0 {
+			t.Fatalf("--states %s: exit %d: %s", states, code, errOut)
+		}
+		if err := json.Unmarshal([]byte(out), &got[k]); err != nil {
+			t.Fatal(err)
+		}
+	}
+	if got[0].AutoStates != 68 || len(got[0].Grid) != 68 || got[0].SpecHash != got[1].SpecHash || got[1].AutoStates != 0 {
+		t.Errorf("auto: %d states, auto_states %d, spec hash %s; explicit: %s", len(got[0].Grid), got[0].AutoStates, got[0].SpecHash, got[1].SpecHash)
+	}
+	for _, tc := range []struct {
+		args []string
+		want string
+	}{
+		{[]string{"--states", "auto", "--method", "tauchen"}, "--states auto applies to --method maxent only"},
+		{[]string{"--states", "9", "--states-cap", "20"}, "--states-cap applies to --states auto only"},
+		{[]string{"--states", "nine"}, "want an integer from 2 to 10000, or auto"},
+		{[]string{"--rho", "0.999", "--states", "auto", "--states-cap", "20"}, "no grid of up to 20 states"},
+	} {
+		args := append([]string{"discretize", "ar1", "--rho", "0.99", "--sigma", "0.1"}, tc.args...)
+		code, _, errOut := run(t, args...)
+		if code != 2 || !strings.Contains(errOut, tc.want) {
+			t.Errorf("%v: exit %d, %q; want 2 and %q", tc.args, code, errOut, tc.want)
+		}
+	}
+}

@@ -43,18 +43,19 @@ var extraKinds []func() *cobra.Command
 
 // methodSettings are the flags every discretization shares.
 type methodSettings struct {
-	states, moments int
-	method, nodes   string
-	matching        string
-	width           float64
-	floden          bool
-	compare         string
-	json            bool
+	states        statesFlag
+	moments       int
+	method, nodes string
+	matching      string
+	width         float64
+	floden        bool
+	compare       string
+	json          bool
 }
 
 func (m *methodSettings) register(cmd *cobra.Command, withMethod bool) {
 	fs := cmd.Flags()
-	fs.IntVar(&m.states, "states", 9, "number of grid points (2 to "+strconv.Itoa(solver.MaxStates)+")")
+	m.states.register(fs, 9, "number of grid points (2 to "+strconv.Itoa(solver.MaxStates)+")")
 	fs.StringVar(&m.nodes, "nodes", "", nodesHelp)
 	fs.StringVar(&m.matching, "matching", "", matchingHelp)
 	if withMethod {
@@ -75,8 +76,10 @@ func (m *methodSettings) register(cmd *cobra.Command, withMethod bool) {
 // settings validates the shared flags and converts them.
 func (m *methodSettings) settings(cmd *cobra.Command) (solver.Settings, error) {
 	var s solver.Settings
-	if err := intRange("states", m.states, 2, solver.MaxStates); err != nil {
-		return s, err
+	if !m.states.auto {
+		if err := intRange("states", m.states.n, 2, solver.MaxStates); err != nil {
+			return s, err
+		}
 	}
 	if cmd.Flags().Changed("moments") {
 		if err := intRange("moments", m.moments, 1, 8); err != nil {
@@ -112,7 +115,10 @@ func (m *methodSettings) settings(cmd *cobra.Command) (solver.Settings, error) {
 	if err != nil {
 		return s, err
 	}
-	return solver.Settings{States: m.states, Moments: m.moments, Method: method, Nodes: nodes, Width: m.width, Floden: m.floden, Matching: matching}, nil
+	if err := m.states.check(cmd.Flags(), method); err != nil {
+		return s, err
+	}
+	return solver.Settings{States: m.states.n, Moments: m.moments, Method: method, Nodes: nodes, Width: m.width, Floden: m.floden, Matching: matching}, nil
 }
 
 // matchingHelp is the help of --matching, shared by every discretize kind.
@@ -152,7 +158,7 @@ func nodeRule(name string) (solver.NodeRule, error) {
 // method always, the others when given (the manifest fills in the same
 // defaults as these flags).
 func (m *methodSettings) entry(cmd *cobra.Command, e map[string]any) map[string]any {
-	e["states"] = m.states
+	m.states.entry(cmd.Flags(), e)
 	method := m.method
 	if method == "" {
 		method = "maxent"

@@ -17,12 +17,13 @@ func init() { extraKinds = append(extraKinds, newVARCmd) }
 
 // varSettings are the discretization flags of `discretize var`.
 type varSettings struct {
-	states, moments int
-	method, axes    string
-	nodes, compare  string
-	matching        string
-	width           float64
-	json            bool
+	states         statesFlag
+	moments        int
+	method, axes   string
+	nodes, compare string
+	matching       string
+	width          float64
+	json           bool
 }
 
 func newVARCmd() *cobra.Command {
@@ -70,7 +71,7 @@ VAR construction.`,
 	}
 	fs := cmd.Flags()
 	vf.register(fs)
-	fs.IntVar(&vs.states, "states", 9, "grid points per axis (the chain has states^d states)")
+	vs.states.register(fs, 9, "grid points per axis (the chain has states^d states)")
 	fs.StringVar(&vs.method, "method", "maxent", "maxent or tauchen")
 	fs.StringVar(&vs.axes, "axes", "principal", "maxent grid orientation: principal (axes of the stationary covariance) or coordinate")
 	fs.IntVar(&vs.moments, "moments", 0, "maxent moment level: 1 means, 2 also covariances (default), 3 or 4 also marginal third and fourth moments")
@@ -85,8 +86,10 @@ VAR construction.`,
 // settings validates the discretization flags for dimension d.
 func (v *varSettings) settings(cmd *cobra.Command, d int) (solver.Settings, error) {
 	var s solver.Settings
-	if err := axisStates(v.states, d); err != nil {
-		return s, err
+	if !v.states.auto {
+		if err := axisStates(v.states.n, d); err != nil {
+			return s, err
+		}
 	}
 	if err := univariateOnly("method", v.method); err != nil {
 		return s, err
@@ -123,8 +126,11 @@ func (v *varSettings) settings(cmd *cobra.Command, d int) (solver.Settings, erro
 	if err != nil {
 		return s, err
 	}
+	if err := v.states.check(cmd.Flags(), method); err != nil {
+		return s, err
+	}
 	axes, _ := solver.ParseAxes(v.axes)
-	return solver.Settings{States: v.states, Method: method, Moments: v.moments, Nodes: nodes, Width: v.width, Axes: axes, Matching: matching}, nil
+	return solver.Settings{States: v.states.n, Method: method, Moments: v.moments, Nodes: nodes, Width: v.width, Axes: axes, Matching: matching}, nil
 }
 
 // entry returns the process as a manifest entry: matrices as lists of
@@ -138,7 +144,8 @@ func (v *varSettings) entry(cmd *cobra.Command, p solver.VAR) map[string]any {
 		}
 		return out
 	}
-	e := map[string]any{"kind": "var", "coef": rows(p.Coef), "cov": rows(p.Cov), "states": v.states, "method": v.method}
+	e := map[string]any{"kind": "var", "coef": rows(p.Coef), "cov": rows(p.Cov), "method": v.method}
+	v.states.entry(cmd.Flags(), e)
 	if p.Intercept != nil {
 		e["intercept"] = p.Intercept
 	}
@@ -247,7 +254,7 @@ func (r varReport) printText(w io.Writer) error {
 	d, n := c.Dim, c.States()
 	what := map[int]string{0: "none exactly", 1: "conditional means", 2: "conditional means and covariances",
 		3: "means, covariances and marginal skewness", 4: "means, covariances, marginal skewness and kurtosis"}[c.Moments]
-	fmt.Fprintf(w, "var chain (d = %d), method %s, %d states (%d per axis", d, c.Method, n, r.Settings.States)
+	fmt.Fprintf(w, "var chain (d = %d), method %s, %d states (%d per axis", d, c.Method, n, perAxis(n, d))
 	if c.Method == solver.MaxEnt {
 		fmt.Fprintf(w, ", %s axes", r.Settings.Axes)
 	}
@@ -355,4 +362,22 @@ func maxAbsOf(v []float64) float64 {
 		m = math.Max(m, math.Abs(x))
 	}
 	return m
+}
+
+// perAxis returns the number of points per axis of a tensor grid of n
+// states in dimension d.
+func perAxis(n, d int) int {
+	k := int(math.Round(math.Pow(float64(n), 1/float64(d))))
+	for k > 1 && pow(k, d) > n {
+		k--
+	}
+	return k
+}
+
+func pow(k, d int) int {
+	p := 1
+	for i := 0; i < d; i++ {
+		p *= k
+	}
+	return p
 }

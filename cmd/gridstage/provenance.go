@@ -22,6 +22,9 @@ type provenance struct {
 	ChainHash string          `json:"chain_hash"`
 	Numeric   string          `json:"numeric_version"`
 	Tool      string          `json:"tool_version"`
+	// AutoStates is the number of states --states auto chose (the spec
+	// holds it as states); 0 when --states gave it.
+	AutoStates int `json:"auto_states,omitempty"`
 }
 
 // solveEntry discretizes a process given as a manifest process entry (the
@@ -50,11 +53,15 @@ func solveEntry(entry map[string]any) (manifests.Solution, provenance, string, e
 		return none, provenance{}, "", flagError(err, paramFlags)
 	}
 	return sol, provenance{Spec: json.RawMessage(job.Canonical), SpecHash: job.SpecHash,
-		ChainHash: batch.ChainHash(job, sol), Numeric: version.Numeric, Tool: version.Tool}, prob.FallbackAdvice(sol, 0), nil
+			ChainHash: batch.ChainHash(job, sol), Numeric: version.Numeric, Tool: version.Tool, AutoStates: job.AutoStates},
+		prob.FallbackAdvice(sol, 0), nil
 }
 
 // printText ends the text output with the chain's identity.
 func (p provenance) printText(w io.Writer) {
+	if p.AutoStates > 0 {
+		fmt.Fprintf(w, "\nstates: auto chose %d, the smallest number whose chain matches the moments in every state holding at least 0.1%% of the stationary mass\n", p.AutoStates)
+	}
 	fmt.Fprintf(w, "\nspec hash %s\nchain hash %s\nnumeric version %s, gridstage %s\n", p.SpecHash, p.ChainHash, p.Numeric, p.Tool)
 }
 

@@ -163,12 +163,15 @@ func printRunSummary(w io.Writer, m *manifests.Manifest, r *batch.Result, took t
 	}
 	fmt.Fprintf(w, "run %q: %d jobs (%d solved, %d from cache, %d failed) in %s, shard %s\n",
 		m.Run, jobs, r.Solved, r.Cached, r.Failed, took.Round(time.Millisecond), r.Record.Shard)
-	if fallbacks := r.FallbackJobs; fallbacks > 0 {
-		fmt.Fprintf(w, "warning: in %d of %d jobs some states matched fewer moments than requested (proven infeasible there on those grids); `gridstage report` shows which\n", fallbacks, jobs)
+	switch {
+	case r.ShortJobs > 0:
+		fmt.Fprintf(w, "warning: in %d of %d jobs states holding at least 0.1%% of the stationary mass matched fewer moments than requested (proven infeasible there on those grids); `gridstage report` shows which\n", r.ShortJobs, jobs)
 		for _, a := range r.Advice {
 			fmt.Fprintf(w, "  %s: %d job(s); most at point %d%s, %d of %d states fell back\n    advice for that job: %s\n",
 				a.Process, a.Jobs, a.Worst.Point, paramText(a.Worst.Params), a.Fallbacks, a.States, a.Text)
 		}
+	case r.FallbackJobs > 0 && !r.UpToDate:
+		fmt.Fprintf(w, "note: in %d of %d jobs some states matched fewer moments than requested (proven infeasible there), each holding less than 0.1%% of the stationary mass: the grids carry the moments wherever the chains spend their time\n", r.FallbackJobs, jobs)
 	}
 	for _, s := range r.Sets {
 		for _, f := range s.Files {
