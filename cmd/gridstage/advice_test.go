@@ -120,7 +120,7 @@ func TestStatesAutoFlag(t *testing.T) {
 	}{
 		{[]string{"--states", "auto", "--method", "tauchen"}, "--states auto applies to --method maxent only"},
 		{[]string{"--states", "9", "--states-cap", "20"}, "--states-cap applies to --states auto only"},
-		{[]string{"--states", "nine"}, "want an integer from 2 to 10000, or auto"},
+		{[]string{"--states", "nine"}, "want an integer from 2 to 2000, or auto"},
 		{[]string{"--rho", "0.999", "--states", "auto", "--states-cap", "20"}, "no grid of up to 20 states"},
 	} {
 		args := append([]string{"discretize", "ar1", "--rho", "0.99", "--sigma", "0.1"}, tc.args...)
