@@ -4,6 +4,7 @@ import (
 	"errors"
 	"fmt"
 	"io/fs"
+	"os"
 	"path/filepath"
 	"sort"
 
@@ -46,7 +47,20 @@ func loadSets(path string, refs []formats.SetRef) (Run, error) {
 	if len(refs) == 1 && filepath.Ext(path) != "" {
 		verifyPath = refs[0].Dir // a file was named: check its whole set's folder
 	}
-	rep, err := formats.Verify(verifyPath)
+	// With a run record beside the sets, verify against it as
+	// `gridstage verify` does (record hash, jobs against points, byte
+	// digests); without one (sets written by hand), the sets alone.
+	var rep *formats.Report
+	var err error
+	against := ""
+	if _, statErr := os.Stat(filepath.Join(refs[0].Dir, batch.RecordFile)); statErr == nil {
+		var full *batch.VerifyReport
+		full, err = batch.Verify(verifyPath, batch.VerifyOptions{})
+		rep = full.Report
+		against = ", files and jobs agree with " + batch.RecordFile + " and have the bytes it records"
+	} else {
+		rep, err = formats.Verify(verifyPath)
+	}
 	switch {
 	case formats.IsNotOutput(err):
 		return Run{}, badInput(path, "%v", err)
@@ -54,7 +68,7 @@ func loadSets(path string, refs []formats.SetRef) (Run, error) {
 		run.Checks = append(run.Checks, Check{Subject: verifyPath, Detail: err.Error()})
 	default:
 		run.Checks = append(run.Checks, Check{Subject: verifyPath, OK: true,
-			Detail: fmt.Sprintf("%d file(s) verified: metadata complete, content and chain hashes recompute, every transition row sums to one", len(rep.Files))})
+			Detail: fmt.Sprintf("%d file(s) verified: metadata complete, content and chain hashes recompute, every transition row sums to one%s", len(rep.Files), against)})
 	}
 	if rep != nil {
 		for _, w := range rep.Warnings {
