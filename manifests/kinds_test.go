@@ -38,6 +38,16 @@ func TestCanonicalNewKinds(t *testing.T) {
 			`{"compare":"maxent","initial":{"law":"normal"},"initial_sd":0.3,"innovation":[{"law":"normal"},{"law":"normal"}],"kind":"lifecycle","method":"rouwenhorst","rho":[0.9,1],"sigma":[0.1,0.2],"states":9}`},
 		{"  - {name: a, kind: product, components: [{kind: ar1, rho: 0.5, sigma: 0.1, method: rouwenhorst, states: 3}, {kind: iid, distribution: {law: laplace}, states: 2, moments: 2}]}\n",
 			`{"compare":"none","components":[{"compare":"none","innovation":{"law":"normal"},"kind":"ar1","mean":0,"method":"rouwenhorst","rho":0.5,"sigma":0.1,"states":3},{"compare":"none","distribution":{"law":"laplace","location":0,"scale":1},"kind":"iid","method":"maxent","moments":2,"nodes":"lattice","states":2,"width":1}],"kind":"product"}`},
+		// A law on a bounded support: Gauss-Legendre nodes over the whole
+		// support and no width, unless the process sets nodes or width.
+		{"  - {name: a, kind: iid, distribution: {law: beta, alpha: 2, beta: 5}, states: 5}\n",
+			`{"compare":"none","distribution":{"alpha":2,"beta":5,"law":"beta","lower":0,"upper":1},"kind":"iid","method":"maxent","moments":4,"nodes":"gauss-legendre","states":5}`},
+		{"  - {name: a, kind: iid, distribution: {law: beta, alpha: 2, beta: 5}, states: 5, nodes: lattice}\n",
+			`{"compare":"none","distribution":{"alpha":2,"beta":5,"law":"beta","lower":0,"upper":1},"kind":"iid","method":"maxent","moments":4,"nodes":"lattice","states":5}`},
+		{"  - {name: a, kind: iid, distribution: {law: beta, alpha: 2, beta: 5}, states: 5, width: 1.5}\n",
+			`{"compare":"none","distribution":{"alpha":2,"beta":5,"law":"beta","lower":0,"upper":1},"kind":"iid","method":"maxent","moments":4,"nodes":"lattice","states":5,"width":1.5}`},
+		{"  - {name: a, kind: iid, distribution: {law: lognormal, log_sd: 0.5}, states: 5, nodes: gauss-hermite}\n",
+			`{"compare":"none","distribution":{"law":"lognormal","log_mean":0,"log_sd":0.5},"kind":"iid","method":"maxent","moments":4,"nodes":"gauss-hermite","states":5}`},
 	}
 	for _, tc := range cases {
 		m := parseOne(t, tc.process)

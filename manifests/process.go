@@ -401,7 +401,8 @@ func (p *processSpec) canonicalSpec() object {
 		if s.Matching != solver.MatchExact {
 			o["matching"] = s.Matching.String()
 		}
-		if s.Nodes == solver.NodesLattice || s.Nodes == solver.NodesGaussLegendre {
+		// Width 0: a law on a bounded support, gridded on all of it.
+		if (s.Nodes == solver.NodesLattice || s.Nodes == solver.NodesGaussLegendre) && s.Width > 0 {
 			o["width"] = s.Width
 		}
 	case solver.Tauchen:

@@ -183,7 +183,7 @@ func (p AR1) Discretize(s Settings) (*Chain, error) {
 		c.Grid = addaCooperGrid(n, p.Mean, sdY)
 		addaCooperMatrix(n, p.Rho, c.Transition)
 	default:
-		return nil, badParam("method", float64(s.Method), "a known method")
+		return nil, badChoice("method", s.Method.String(), "a known method")
 	}
 	return c, nil
 }

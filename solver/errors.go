@@ -3,6 +3,7 @@ package solver
 import (
 	"errors"
 	"fmt"
+	"strconv"
 )
 
 // ErrInfeasible reports that a moment target lies outside the convex hull of
@@ -18,11 +19,29 @@ var ErrNeedsNormal = errors.New("solver: method adda-cooper needs normal innovat
 type ParamError struct {
 	Param string // parameter name as the user knows it, e.g. "rho"
 	Value float64
-	Want  string // the valid range, e.g. "in (-1, 1)"
+	// Text is the value as the user names it when the parameter is a
+	// choice (a method, a node rule); empty for numbers.
+	Text string
+	Want string // the valid range, e.g. "in (-1, 1)"
 }
 
 func (e *ParamError) Error() string {
-	return fmt.Sprintf("solver: %s = %g is invalid: want %s", e.Param, e.Value, e.Want)
+	return fmt.Sprintf("solver: %s = %s is invalid: want %s", e.Param, e.ValueText(), e.Want)
+}
+
+// ValueText returns the value as the user would write it: the choice's
+// name, or the number.
+func (e *ParamError) ValueText() string {
+	if e.Text != "" {
+		return e.Text
+	}
+	return strconv.FormatFloat(e.Value, 'g', -1, 64)
+}
+
+// badChoice returns a *ParamError for a named choice (a method, a node
+// rule), so that messages name it rather than its number.
+func badChoice(name, value, want string) error {
+	return &ParamError{Param: name, Text: value, Want: want}
 }
 
 // badParam returns a *ParamError.

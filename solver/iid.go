@@ -20,16 +20,26 @@ type Discrete struct {
 
 // Discretize returns a discrete distribution with s.States points whose
 // first s.Moments standardized moments equal those of the distribution
-// (falling back to fewer when infeasible). Only MaxEnt applies. Lattice and
-// Gauss-Legendre grids span Width standard deviations about the mean,
-// clipped to the support; on a bounded support the lattice uses cell
-// midpoints so no point sits where the density may vanish or blow up.
+// (falling back to fewer when infeasible). Only MaxEnt applies.
+//
+// Where the points go depends on the support:
+//   - On a bounded support [lo, hi] (Beta), lattice and Gauss-Legendre
+//     grids cover the whole support: the lattice takes the midpoints of n
+//     equal cells, so no point sits where the density may vanish or blow
+//     up, and Gauss-Legendre its nodes on [lo, hi]. A Width > 0 narrows the
+//     grid to the mean ± Width standard deviations, clipped to the support.
+//   - Elsewhere lattice and Gauss-Legendre grids span Width (0: DefaultWidth)
+//     standard deviations about the mean, clipped to a half-bounded support
+//     with cell midpoints.
+//   - Gauss-Hermite nodes suit the real line, and the log-normal law in
+//     logs: x_j = exp(μ + √2 σ z_j) for the Gauss-Hermite nodes z_j, whose
+//     prior weights are then exactly the rule's weights.
 func (p IID) Discretize(s Settings) (*Discrete, error) {
 	if err := checkStates(s.States); err != nil {
 		return nil, err
 	}
 	if s.Method != MaxEnt {
-		return nil, badParam("method", float64(s.Method), "maxent for i.i.d. distributions")
+		return nil, badChoice("method", s.Method.String(), "maxent for i.i.d. distributions")
 	}
 	if !(s.Width >= 0) || math.IsInf(s.Width, 1) {
 		return nil, badParam("width", s.Width, "finite and > 0")
@@ -41,13 +51,20 @@ func (p IID) Discretize(s Settings) (*Discrete, error) {
 	n := s.States
 	mean, sd := p.Dist.Mean(), p.Dist.StdDev()
 	lo, hi := p.Dist.Support()
+	bounded := !math.IsInf(lo, -1) && !math.IsInf(hi, 1)
 	width := s.Width
 	if width == 0 {
 		width = DefaultWidth(n)
 	}
 	a, b := math.Max(lo, mean-width*sd), math.Min(hi, mean+width*sd)
+	if bounded && s.Width == 0 {
+		a, b = lo, hi
+	}
 	var nodes, logW []float64
+	ln, isLogNormal := p.Dist.(LogNormal)
 	switch {
+	case s.Nodes == NodesGaussHermite && isLogNormal:
+		nodes, logW = logHermiteGrid(n, ln.Mu, ln.Sigma)
 	case s.Nodes == NodesGaussHermite && (!math.IsInf(lo, -1) || !math.IsInf(hi, 1)):
 		return nil, fmt.Errorf("solver: %s nodes do not suit a distribution on a bounded or half-bounded support: want lattice, gauss-legendre or equal-mass", s.Nodes)
 	case s.Nodes == NodesLattice && (a > mean-width*sd || b < mean+width*sd):
@@ -102,4 +119,25 @@ func (d *Discrete) Chain() *Chain {
 		c.Certificates[i] = d.Certificate
 	}
 	return c
+}
+
+// logHermiteGrid places n points at x_j = exp(μ + √2 σ z_j) for the
+// Gauss-Hermite nodes z_j and returns them with the logarithm of their
+// Lebesgue weights in x: with y = log x, ∫ g(x) dx = ∫ g(e^y) e^y dy, and
+// the rule's weight in y is w_j e^{z_j²} √2 σ (as in placeGrid), so
+//
+//	log W_j = log w_j + z_j² + log(√2 σ) + y_j.
+//
+// Times the log-normal density at x_j this is w_j/√π: the prior is the
+// Gauss-Hermite rule itself.
+func logHermiteGrid(n int, mu, sigma float64) (nodes, logW []float64) {
+	r := GaussHermite(n)
+	scale := math.Sqrt2 * sigma
+	nodes, logW = make([]float64, n), make([]float64, n)
+	for j, z := range r.Nodes {
+		y := mu + scale*z
+		nodes[j] = math.Exp(y)
+		logW[j] = math.Log(r.Weights[j]) + z*z + math.Log(scale) + y
+	}
+	return nodes, logW
 }

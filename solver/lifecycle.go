@@ -191,7 +191,7 @@ func (p LifeCycle) Discretize(s Settings) (*AgeChain, error) {
 			}
 			grids[t] = Trapezoid(n, -w*sd, w*sd).Nodes
 		default:
-			return nil, badParam("method", float64(s.Method), "maxent, rouwenhorst or tauchen for a life-cycle process")
+			return nil, badChoice("method", s.Method.String(), "maxent, rouwenhorst or tauchen for a life-cycle process")
 		}
 	}
 	ac := &AgeChain{Ages: make([]*Chain, T), Final: grids[T], Method: s.Method}

@@ -109,7 +109,7 @@ func (p SV) Discretize(level, vol Settings) (*Chain, error) {
 		}
 		nodes = Trapezoid(ny, p.Mean-w*sdY, p.Mean+w*sdY).Nodes
 	default:
-		return nil, badParam("method", float64(level.Method), "maxent or tauchen for the level of a stochastic-volatility process")
+		return nil, badChoice("method", level.Method.String(), "maxent or tauchen for the level of a stochastic-volatility process")
 	}
 	levelRows := make([][]float64, nh)
 	levelMatched := make([][]int, nh)

@@ -219,7 +219,7 @@ func (p VAR) Discretize(s Settings) (*Chain, error) {
 	case Tauchen:
 		return p.tauchen(s), nil
 	}
-	return nil, badParam("method", float64(s.Method), "maxent or tauchen for a VAR")
+	return nil, badChoice("method", s.Method.String(), "maxent or tauchen for a VAR")
 }
 
 func (p VAR) maxent(s Settings, L int) *Chain {

@@ -140,7 +140,7 @@ func matchingPolicy(name string, method solver.Method) (solver.Matching, error) 
 }
 
 // nodesHelp is the help of --nodes, shared by every discretize kind.
-const nodesHelp = "placement of the grid points (maxent only): lattice (the default; equally spaced over ± width), gauss-hermite, gauss-legendre, or equal-mass (at quantiles of the distribution)"
+const nodesHelp = "placement of the grid points (maxent only): lattice (the default; equally spaced over ± width), gauss-hermite (for iid lognormal: in logs), gauss-legendre (the default for iid beta, on its whole support), or equal-mass (at quantiles of the distribution)"
 
 // nodeRule validates --nodes; empty means the default, lattice.
 func nodeRule(name string) (solver.NodeRule, error) {

@@ -24,6 +24,13 @@ func isCobraUsage(err error) bool {
 func flagError(err error, flagFor map[string]string) error {
 	var pe *solver.ParamError
 	if errors.As(err, &pe) {
+		if pe.Text != "" { // a named choice (a method, a node rule)
+			name := "--" + pe.Param
+			if f, ok := flagFor[pe.Param]; ok {
+				name = "--" + f
+			}
+			return badInput("%s %s does not apply: want %s", name, pe.Text, pe.Want)
+		}
 		if f, ok := flagFor[pe.Param]; ok {
 			return badInput("--%s %g is out of range: want %s", f, pe.Value, pe.Want)
 		}
