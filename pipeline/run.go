@@ -98,8 +98,25 @@ type host struct {
 	res  *Result
 }
 
+// startedStage is a started stage: a launched protocol stage (plugin.Process)
+// or a file-contract stage (plugin.FileStage), which has no process
+// between its runs.
+type startedStage interface {
+	Close()
+	Explain(call string, err error) error
+}
+
 // launch starts a stage, checks its health and returns its description.
-func (h *host) launch(ctx context.Context, st *StageSpec) (*plugin.Process, plugin.Stage, plugin.Description, error) {
+func (h *host) launch(ctx context.Context, st *StageSpec) (startedStage, plugin.Stage, plugin.Description, error) {
+	if st.Kind == KindFiles {
+		fs := &plugin.FileStage{Name: st.Name, Version: st.Version, Command: st.Command, Dir: h.spec.Dir,
+			WorkRoot: filepath.Join(h.spec.Out, "work"), Timeout: h.spec.Timeout, Stderr: h.opt.Stderr}
+		if err := fs.Health(ctx); err != nil {
+			return nil, nil, plugin.Description{}, err
+		}
+		d, err := fs.Describe(ctx)
+		return fs, fs, d, err
+	}
 	p, stage, err := plugin.Launch(ctx, st.Command, plugin.LaunchOptions{
 		Name: st.Name, StartTimeout: h.spec.StartTimeout, Dir: h.spec.Dir, Stderr: h.opt.Stderr,
 	})
@@ -223,7 +240,11 @@ func (h *host) stage(ctx context.Context, st *StageSpec) error {
 			}
 			req.Chains = append(req.Chains, in)
 		}
-		cctx, cancel := context.WithTimeout(ctx, h.spec.Timeout)
+		// A files stage applies the timeout to each run of its program.
+		cctx, cancel := ctx, context.CancelFunc(func() {})
+		if st.Kind != KindFiles {
+			cctx, cancel = context.WithTimeout(ctx, h.spec.Timeout)
+		}
 		ests, err := stage.Estimate(cctx, req)
 		cancel()
 		if err != nil {

@@ -33,6 +33,11 @@ import (
 //	      - model: burnside
 //	        params: {beta: 0.95, theta: -1.5}
 //	        processes: [dividends]     # optional: only these processes' chains
+//	  - name: my-solver
+//	    kind: files                    # run under the file contract, not the stage protocol
+//	    command: [./solve.sh]
+//	    version: "2.1"                 # optional; default: a digest of the command's files
+//	    estimates: [...]
 //
 // Relative paths (manifest, out, ledger, and commands whose first word
 // contains a slash) are resolved against the pipeline file's folder, which
@@ -51,11 +56,22 @@ type Spec struct {
 
 // StageSpec is one stage of a pipeline.
 type StageSpec struct {
-	Name      string
+	Name string
+	// Kind is how the host talks to the stage: KindProtocol (the stage
+	// protocol, the default) or KindFiles (plugin.FileStage: the command
+	// runs once per chain under the file contract).
+	Kind      string
 	Command   []string // argv; argv[0] resolved as described on Spec
+	Version   string   // KindFiles only: the version recorded in the ledger ("" derives one)
 	Estimates []EstimateSpec
 	Line, Col int // position of the stage in the pipeline file
 }
+
+// Stage kinds.
+const (
+	KindProtocol = "protocol"
+	KindFiles    = "files"
+)
 
 // EstimateSpec asks a stage for one model on the pipeline's chains.
 type EstimateSpec struct {
@@ -298,10 +314,18 @@ func (p *parser) command(n *yaml.Node, field string) []string {
 }
 
 func (p *parser) stage(n *yaml.Node, field string) StageSpec {
-	st := StageSpec{Line: n.Line, Col: n.Column}
+	st := StageSpec{Line: n.Line, Col: n.Column, Kind: KindProtocol}
+	var versionAt *yaml.Node
 	p.mapping(n, field, map[string]func(*yaml.Node, string){
 		"name":    func(n *yaml.Node, f string) { st.Name = p.name(n, f) },
 		"command": func(n *yaml.Node, f string) { st.Command = p.command(n, f) },
+		"kind": func(n *yaml.Node, f string) {
+			st.Kind = p.str(n, f)
+			if st.Kind != KindProtocol && st.Kind != KindFiles && st.Kind != "" {
+				p.fail(n, f, "%q is not a stage kind: want protocol (the stage protocol, the default) or files (the file contract)", st.Kind)
+			}
+		},
+		"version": func(n *yaml.Node, f string) { st.Version, versionAt = p.str(n, f), n },
 		"estimates": func(n *yaml.Node, f string) {
 			if !p.kind(n, f, yaml.SequenceNode, "a list of estimates") {
 				return
@@ -314,6 +338,9 @@ func (p *parser) stage(n *yaml.Node, field string) StageSpec {
 			}
 		},
 	}, "name", "command", "estimates")
+	if versionAt != nil && st.Kind != KindFiles {
+		p.fail(versionAt, field+".version", "applies to stages of kind files only: a protocol stage names its own version")
+	}
 	return st
 }
 

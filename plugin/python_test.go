@@ -7,6 +7,7 @@ import (
 	"os"
 	"os/exec"
 	"path/filepath"
+	"strconv"
 	"strings"
 	"testing"
 
@@ -117,5 +118,73 @@ func TestPythonStageVersionMismatch(t *testing.T) {
 	p.tail.Write(out)
 	if err := p.parseMarker(strings.TrimPrefix(line, mismatchMarker)); err.Error() != "stage py speaks stage protocol version 1 but the host speaks version 7" {
 		t.Errorf("host message %q", err)
+	}
+}
+
+// The gridstage_stage module turns plain functions into a stage: it checks
+// the parameters against the function's signature, reports BadRequest as
+// the host's input error, and refuses non-finite results and failures of
+// the function with a message the host can show.
+func TestPythonModule(t *testing.T) {
+	script := pythonScript(t)
+	user := filepath.Join(t.TempDir(), "user_stage.py")
+	os.WriteFile(user, []byte(`import sys
+sys.path.insert(0, `+strconv.Quote(filepath.Dir(script))+`)
+from gridstage_stage import serve, BadRequest
+
+def mean(chain, scale, shift=0.0):
+    if scale == 0:
+        raise BadRequest("scale must not be zero")
+    if scale < 0:
+        return {"bad": float("nan")}
+    if scale > 100:
+        return {"ratio": 1 / 0}
+    return {"mean": scale * float(chain.stationary @ chain.levels) + shift, "levels": chain.levels}
+
+serve("user-means", "1.0", {"means": mean})
+`), 0o644)
+	p, s, err := Launch(context.Background(), []string{"/usr/bin/python3", user}, LaunchOptions{Name: "user"})
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer p.Close()
+	ctx := context.Background()
+	if d, err := s.Describe(ctx); err != nil || d.Name != "user-means" || d.Version != "1.0" || len(d.Models) != 1 || d.Models[0] != "means" {
+		t.Fatalf("Describe = %+v, %v", d, err)
+	}
+	c, err := solver.AR1{Mean: 1, Rho: 0.5, Sigma: 0.2}.Discretize(solver.Settings{States: 5})
+	if err != nil {
+		t.Fatal(err)
+	}
+	data := &ChainData{Dim: 1, Grid: c.Grid, Transition: c.Transition, Matched: c.Matched}
+	in := []ChainInput{{Ref: ChainRef{ChainHash: DataHash(data)}, Data: data}}
+	ask := func(params map[string]float64) ([]Estimate, error) {
+		return s.Estimate(ctx, EstimateRequest{Model: "means", Params: params, Chains: in})
+	}
+	es, err := ask(map[string]float64{"scale": 2})
+	if err != nil {
+		t.Fatal(err)
+	}
+	// The stationary mean of a maxent chain equals the process mean 1
+	// (means matched in every state): 2·1 + 0, to 1e-12 (rounding in a
+	// least-squares solve of a 6×5 system).
+	if len(es) != 1 || math.Abs(es[0].Scalars["mean"]-2) > 1e-12 || len(es[0].Vectors["levels"]) != 5 || es[0].ChainHashes[0] != in[0].Ref.ChainHash {
+		t.Errorf("estimates %+v", es)
+	}
+	for _, tc := range []struct {
+		params map[string]float64
+		bad    bool
+		want   string
+	}{
+		{map[string]float64{}, true, "model means needs parameter scale"},
+		{map[string]float64{"scale": 1, "tilt": 2}, true, "model means does not take parameter tilt (it takes scale, shift)"},
+		{map[string]float64{"scale": 0}, true, "scale must not be zero"},
+		{map[string]float64{"scale": -1}, false, "returned a non-finite bad on chain"},
+		{map[string]float64{"scale": 1000}, false, "ZeroDivisionError"},
+	} {
+		_, err := ask(tc.params)
+		if err == nil || errors.Is(err, ErrBadRequest) != tc.bad || !strings.Contains(err.Error(), tc.want) {
+			t.Errorf("%v: err = %v, want %q (bad request %v)", tc.params, err, tc.want, tc.bad)
+		}
 	}
 }
