@@ -4,7 +4,9 @@
 // lineage ledger which chain fed which estimate.
 //
 // Stages are any executables that speak the stage protocol (package
-// plugin). Every call to a stage runs under a timeout; a stage that crashes,
-// hangs or answers with garbage stops the pipeline with one clear error,
-// and every stage process is stopped before Run returns.
+// plugin), or any executables at all under the file contract
+// (plugin.FileStage, kind files in the pipeline file). Every call to a
+// stage runs under a timeout; a stage that crashes, hangs or answers with
+// garbage stops the pipeline with one clear error, and every stage process
+// is stopped before Run returns.
 package pipeline

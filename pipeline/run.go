@@ -13,6 +13,7 @@ import (
 	"strings"
 	"time"
 
+	"gridstage/formats/arrays"
 	"gridstage/pipeline/lineage"
 	"gridstage/plugin"
 )
@@ -111,6 +112,11 @@ func (h *host) launch(ctx context.Context, st *StageSpec) (startedStage, plugin.
 	if st.Kind == KindFiles {
 		fs := &plugin.FileStage{Name: st.Name, Version: st.Version, Command: st.Command, Dir: h.spec.Dir,
 			WorkRoot: filepath.Join(h.spec.Out, "work"), Timeout: h.spec.Timeout, Stderr: h.opt.Stderr}
+		if a, ok := h.opt.Loader.(interface {
+			PointArrays(context.Context, plugin.ChainRef) ([]arrays.Array, error)
+		}); ok {
+			fs.Arrays = a.PointArrays
+		}
 		if err := fs.Health(ctx); err != nil {
 			return nil, nil, plugin.Description{}, err
 		}

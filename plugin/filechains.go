@@ -2,12 +2,15 @@ package plugin
 
 import (
 	"context"
+	"encoding/json"
 	"errors"
 	"fmt"
 	"io"
+	"os"
 	"sync"
 
 	"gridstage/formats"
+	"gridstage/formats/arrays"
 	"gridstage/solver"
 )
 
@@ -25,9 +28,10 @@ type FileLoader struct {
 var _ ChainLoader = (*FileLoader)(nil)
 
 type loadedSet struct {
-	fileHash string
-	header   formats.Header
-	points   map[int][]formats.Record
+	fileHash    string
+	tableHashes string // JSON object of every table's content hash; "" until asked for
+	header      formats.Header
+	points      map[int][]formats.Record
 }
 
 // Load returns the chain ref names, or an error wrapping ErrChainMismatch
@@ -150,4 +154,55 @@ func VerifyData(ref ChainRef, d *ChainData) error {
 		return MismatchHash("chain hash", "the inline chain", ref.ChainHash, got)
 	}
 	return nil
+}
+
+// PointArrays returns the sweep point ref names as the named arrays that
+// gridstage arrays writes to .npz and .mat files (package formats/arrays;
+// docs/FORMATS.md, "Arrays for other languages"), after the checks of
+// Load. The content hashes stored with them are those of the set's tables,
+// each recomputed from its file.
+func (l *FileLoader) PointArrays(ctx context.Context, ref ChainRef) ([]arrays.Array, error) {
+	if _, err := l.Load(ctx, ref); err != nil {
+		return nil, err
+	}
+	set, err := l.set(ref.Path)
+	if err != nil {
+		return nil, err
+	}
+	hashes, err := l.tableHashes(ref.Path, set)
+	if err != nil {
+		return nil, err
+	}
+	recs := set.points[ref.Point]
+	p := &arrays.Point{Header: set.header, Records: recs, ChainHash: ref.ChainHash}
+	return p.Arrays(hashes)
+}
+
+// tableHashes returns the JSON object of the content hashes of the set's
+// tables by table name, verifying each file once.
+func (l *FileLoader) tableHashes(path string, set *loadedSet) (string, error) {
+	l.mu.Lock()
+	defer l.mu.Unlock()
+	if set.tableHashes != "" {
+		return set.tableHashes, nil
+	}
+	sref, _ := formats.RefOf(path)
+	hashes := map[string]string{}
+	for _, table := range formats.Tables {
+		p := sref.Path(table)
+		if _, err := os.Stat(p); errors.Is(err, os.ErrNotExist) {
+			continue
+		}
+		rep, err := formats.Verify(p)
+		if err != nil {
+			return "", fmt.Errorf("%w: %v", ErrChainMismatch, err)
+		}
+		hashes[table] = rep.Files[0].ContentHash
+	}
+	b, err := json.Marshal(hashes) // keys sorted
+	if err != nil {
+		return "", err
+	}
+	set.tableHashes = string(b)
+	return set.tableHashes, nil
 }

@@ -3,10 +3,12 @@ package plugin
 import (
 	"bufio"
 	"encoding/json"
+	"io"
 	"os"
 	"path/filepath"
 	"strconv"
 
+	"gridstage/formats/arrays"
 	"gridstage/solver"
 )
 
@@ -43,6 +45,8 @@ type fileArrays struct {
 	Initial    string `json:"initial,omitempty"`
 	Matched    string `json:"matched"`
 	Params     string `json:"params"`
+	Npz        string `json:"npz,omitempty"`
+	Mat        string `json:"mat,omitempty"`
 }
 
 // writeRequest writes the request and the chain's arrays into the work
@@ -54,8 +58,9 @@ type fileArrays struct {
 // line; left out when the chain has no unique stationary distribution),
 // initial.txt (when the chain has an initial distribution), matched.txt
 // (moments matched per state) and params.txt (one "name value" per line,
-// sorted by name).
-func writeRequest(work, stage string, req EstimateRequest, in ChainInput) (string, error) {
+// sorted by name). Given named arrays, it also writes them as chain.npz
+// and chain.mat (formats/arrays).
+func writeRequest(work, stage string, req EstimateRequest, in ChainInput, named []arrays.Array) (string, error) {
 	d := in.Data
 	n := d.States()
 	at := func(name string) string { return filepath.Join(work, name) }
@@ -102,12 +107,39 @@ func writeRequest(work, stage string, req EstimateRequest, in ChainInput) (strin
 	}); err != nil {
 		return "", err
 	}
+	if named != nil {
+		r.Files.Npz, r.Files.Mat = at("chain.npz"), at("chain.mat")
+		if err := writeWith(r.Files.Npz, named, arrays.WriteNpz); err != nil {
+			return "", err
+		}
+		if err := writeWith(r.Files.Mat, named, arrays.WriteMat); err != nil {
+			return "", err
+		}
+	}
 	b, err := json.MarshalIndent(r, "", "  ")
 	if err != nil {
 		return "", err
 	}
 	path := at(RequestFile)
 	return path, os.WriteFile(path, append(b, '\n'), 0o666)
+}
+
+// writeWith writes the arrays with one of the encoders of formats/arrays.
+func writeWith(path string, named []arrays.Array, encode func(io.Writer, []arrays.Array) error) error {
+	f, err := os.Create(path)
+	if err != nil {
+		return err
+	}
+	w := bufio.NewWriter(f)
+	if err := encode(w, named); err != nil {
+		f.Close()
+		return err
+	}
+	if err := w.Flush(); err != nil {
+		f.Close()
+		return err
+	}
+	return f.Close()
 }
 
 // writeMatrix writes v as rows of cols numbers.

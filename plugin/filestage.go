@@ -18,6 +18,8 @@ import (
 	"strconv"
 	"strings"
 	"time"
+
+	"gridstage/formats/arrays"
 )
 
 // FileContract names the version of the file contract a FileStage speaks;
@@ -63,6 +65,10 @@ type FileStage struct {
 	Env []string
 	// Stderr, if set, receives a copy of the program's stdout and stderr.
 	Stderr io.Writer
+	// Arrays, if set, returns a chain as the named arrays of gridstage
+	// arrays (FileLoader.PointArrays); each run's folder then also holds
+	// chain.npz and chain.mat with them.
+	Arrays func(context.Context, ChainRef) ([]arrays.Array, error)
 }
 
 var _ Stage = (*FileStage)(nil)
@@ -147,7 +153,13 @@ func (f *FileStage) run(ctx context.Context, req EstimateRequest, in ChainInput)
 		return &CallError{Stage: f.Name, Call: "Estimate",
 			Msg: fmt.Sprintf(format, args...) + " (its files are kept in " + work + ")"}
 	}
-	request, err := writeRequest(work, f.Name, req, in)
+	var named []arrays.Array
+	if f.Arrays != nil {
+		if named, err = f.Arrays(ctx, in.Ref); err != nil {
+			return Estimate{}, fmt.Errorf("stage %s: the arrays of %s: %w", f.Name, which, err)
+		}
+	}
+	request, err := writeRequest(work, f.Name, req, in, named)
 	if err != nil {
 		return Estimate{}, fmt.Errorf("stage %s: writing the request for %s: %w", f.Name, which, err)
 	}

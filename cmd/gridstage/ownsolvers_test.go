@@ -193,3 +193,59 @@ stages:
 		}
 	}
 }
+
+// A files stage also gets the chain as chain.npz and chain.mat (gridstage
+// arrays' layout): numpy.load and scipy.io.loadmat (Debian's python3-numpy
+// and python3-scipy) read the same transition matrix and grid, bit for
+// bit, as the plain-text arrays of the same run.
+func TestFilesStageArrays(t *testing.T) {
+	bin := stageBinaries(t)
+	if err := exec.Command("/usr/bin/python3", "-c", "import numpy, scipy.io").Run(); err != nil {
+		if os.Getenv("CI") == "true" {
+			t.Fatalf("python3-numpy/python3-scipy missing in CI: %v", err)
+		}
+		t.Skip("/usr/bin/python3 cannot import numpy and scipy.io")
+	}
+	dir := t.TempDir()
+	ex := copyExample(t, dir, "harbour.yaml")
+	os.WriteFile(filepath.Join(ex, "arrays.py"), []byte(`import json, os, sys
+import numpy as np, scipy.io
+req = json.load(open(os.environ["GRIDSTAGE_REQUEST"]))
+f = req["files"]
+P = np.loadtxt(f["transition"], ndmin=2)
+x = np.loadtxt(f["grid"], ndmin=2)
+npz = np.load(f["npz"])
+mat = scipy.io.loadmat(f["mat"])
+same = (np.array_equal(npz["transition"], P) and np.array_equal(mat["transition"], P)
+        and np.array_equal(npz["grid"], x) and np.array_equal(mat["grid"], x)
+        and str(npz["chain_hash"]) == req["chain"]["chain_hash"])
+json.dump({"scalars": {"same": float(same), "states": float(P.shape[0])}}, open(req["estimate"], "w"))
+`), 0o644)
+	pipe := filepath.Join(ex, "arrays.yaml")
+	os.WriteFile(pipe, []byte(`name: arrays
+manifest: harbour.yaml
+out: out
+stages:
+  - name: arrays
+    kind: files
+    command: [/usr/bin/python3, arrays.py]
+    estimates:
+      - model: check
+`), 0o644)
+	code, out, errOut := gridstageCmd(bin, "pipeline", pipe, "--json")
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, errOut)
+	}
+	var res pipelineResult
+	if err := json.Unmarshal([]byte(out), &res); err != nil {
+		t.Fatal(err)
+	}
+	if len(res.Estimates) != 4 {
+		t.Fatalf("%d estimates, want one per chain (4)", len(res.Estimates))
+	}
+	for _, e := range res.Estimates {
+		if e.Scalars["same"] != 1 {
+			t.Errorf("chain %s: the .npz or .mat arrays differ from the text arrays (%v)", e.ChainHashes[0], e.Scalars)
+		}
+	}
+}
