@@ -93,7 +93,8 @@ func records(job manifests.Job, sol manifests.Solution) []formats.Record {
 	}
 	final := base
 	final.Age = len(a.Ages)
-	final.Chain = &solver.Chain{Dim: 1, Grid: a.Final, Method: a.Method, Matched: make([]int, len(a.Final))}
+	dim := a.Ages[0].Dim
+	final.Chain = &solver.Chain{Dim: dim, Grid: a.Final, Method: a.Method, Matched: make([]int, len(a.Final)/dim)}
 	return append(out, final)
 }
 

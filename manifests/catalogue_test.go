@@ -75,6 +75,7 @@ var badManifests = []struct {
 	{"lifecycle-lengths.yaml", ErrRule},
 	{"lifecycle-innovations.yaml", ErrRule},
 	{"product-components.yaml", ErrRule},
+	{"lifecycle-product.yaml", ErrRule},
 	{"product-too-many-states.yaml", ErrRange},
 	{"former-names.yaml", ErrUnknown},
 }

@@ -110,7 +110,7 @@ func (j Job) Build() (Problem, error) {
 // problem returns the solver inputs of a checked process.
 func (q *processSpec) problem() Problem {
 	p := Problem{Settings: q.settings, DefaultWidth: q.defaultWidth()}
-	if ak, ok := q.spec.(ageKind); ok {
+	if ak, ok := q.spec.(ageKind); ok && ak.ageModel() != nil {
 		p.AgeModel = ak.ageModel()
 	} else {
 		p.Model = q.spec.model()
@@ -188,7 +188,7 @@ func (s Solution) Method() solver.Method {
 // Dim returns the dimension of the state vector.
 func (s Solution) Dim() int {
 	if s.Ages != nil {
-		return 1
+		return s.Ages.Ages[0].Dim
 	}
 	return s.Chain.Dim
 }

@@ -110,8 +110,9 @@ type compositeKind interface {
 	composite()
 }
 
-// ageKind marks a kind whose chain changes with age (lifecycle): Build
-// sets Problem.AgeModel instead of Problem.Model.
+// ageKind marks a kind whose chain changes with age (lifecycle, and a
+// product with a life-cycle component): Build sets Problem.AgeModel
+// instead of Problem.Model when ageModel returns one.
 type ageKind interface {
 	ageModel() AgeModel
 }
@@ -124,4 +125,10 @@ type stateCounter interface {
 }
 
 // componentKinds are the kinds a product may combine.
-var componentKinds = []string{"ar1", "ar1-volatility", "iid", "var"}
+var componentKinds = []string{"ar1", "ar1-volatility", "iid", "var", "lifecycle"}
+
+// ageComponentKinds are the kinds a product with a life-cycle component
+// may combine: univariate ones, so that the product's diagnostics can
+// describe the sum of its coordinates (log income as a persistent plus a
+// transitory part).
+var ageComponentKinds = []string{"ar1", "iid", "lifecycle"}

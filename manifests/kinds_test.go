@@ -242,7 +242,7 @@ func TestSchemaParameterPattern(t *testing.T) {
 	if n < 100 {
 		t.Errorf("only %d parameter names checked", n)
 	}
-	for _, bad := range []string{"coef[4][0]", "components[0].components[1].rho", "components[0].rho[1]", "log_variance.nu", "innovation[x].nu"} {
+	for _, bad := range []string{"coef[4][0]", "components[0].components[1].rho", "components[0].rho[1].x", "components[0].years_per_period", "log_variance.nu", "innovation[x].nu"} {
 		if re.MatchString(bad) {
 			t.Errorf("the schema's pattern accepts %s", bad)
 		}

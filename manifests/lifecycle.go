@@ -10,7 +10,7 @@ import (
 )
 
 func init() {
-	registerKind(kindInfo{name: "lifecycle", keys: []string{"rho", "sigma", "initial_sd", "initial", "innovation"},
+	registerKind(kindInfo{name: "lifecycle", keys: []string{"rho", "sigma", "initial_sd", "initial", "innovation", "years_per_period"},
 		new: func() kindSpec { return &lifecycleSpec{} }})
 }
 
@@ -21,8 +21,12 @@ func init() {
 // with rho and sigma the lists ρ_t and σ_t (T entries each), initial_sd
 // σ_0, initial the law of u, and innovation the law of ε: one law for every
 // age, or a list of T laws. Laws are rescaled to mean 0 and variance 1.
-// The chain has T + 1 ages with states grid points each.
+// The chain has T + 1 ages with states grid points each, numbered as model
+// periods t = 0 … T; years_per_period, when given, says how long a period
+// is, for the labels of figures (it is not sweepable and changes no
+// number, but enters the canonical spec so that files carry it).
 type lifecycleSpec struct {
+	yearsPerPeriod   num
 	rho, sigma       *numList
 	rhoBad, sigmaBad bool
 	initialSD        num
@@ -41,6 +45,7 @@ func (s *lifecycleSpec) decode(m *mapping) {
 	s.rho, s.rhoBad = m.numberList("rho", ageListWant)
 	s.sigma, s.sigmaBad = m.numberList("sigma", ageListWant)
 	s.initialSD = m.number("initial_sd")
+	s.yearsPerPeriod = m.number("years_per_period")
 	s.initial = decodeLaw(m, "initial", innovationLaws, true)
 	n := m.get("innovation")
 	if n != nil && n.Kind == yaml.SequenceNode {
@@ -87,6 +92,9 @@ func (s *lifecycleSpec) params(add func(string, *num)) {
 
 func (s *lifecycleSpec) check(r *reporter, at loc) bool {
 	ok := present(r, s.initialSD, at, "initial_sd", "a finite number > 0 (the s.d. at the first age)") && checkPositive(r, s.initialSD)
+	if s.yearsPerPeriod.set {
+		ok = checkPositive(r, s.yearsPerPeriod) && ok
+	}
 	field := func(key string) loc { return loc{pos: at.pos, path: joinKey(at.path, key)} }
 	switch {
 	case s.rho != nil:
@@ -176,6 +184,9 @@ func (s *lifecycleSpec) canonical(o object) {
 		laws[t] = s.innovation(t).canonical()
 	}
 	o["innovation"] = laws
+	if s.yearsPerPeriod.set {
+		o["years_per_period"] = s.yearsPerPeriod.v
+	}
 }
 
 // innovation returns the law of the move from age t.

@@ -34,6 +34,7 @@ var goodManifests = []struct {
 		"wages": {"components[0].rho"}}},
 	{"examples/lifecycle-earnings.yaml", 1, nil},
 	{"examples/firm-var.yaml", 2, nil},
+	{"examples/lifecycle-income.yaml", 2, map[string][]string{"income": {"components[1].distribution.sd"}}},
 }
 
 func loadGood(t *testing.T, file string) *Manifest {

@@ -13,7 +13,10 @@ func init() {
 
 // productSpec combines independent processes into one chain (solver.Product):
 // components lists them, each a process entry without name, sweep or
-// baseline, of kind ar1, ar1-volatility, iid or var, with its own settings. The state
+// baseline, of kind ar1, ar1-volatility, iid, var or lifecycle, with its
+// own settings. With a life-cycle component the product is a life cycle
+// too (solver.ProductAges): its components are then univariate (ar1, iid,
+// lifecycle, life cycles with the same number of ages). The state
 // vector concatenates the components' vectors, the first component's
 // first, and states are numbered with the last component varying fastest.
 type productSpec struct {
@@ -22,7 +25,7 @@ type productSpec struct {
 	bad   bool
 }
 
-const componentsWant = "a list of at least two processes (each with kind ar1, ar1-volatility, iid or var and its own settings)"
+const componentsWant = "a list of at least two processes (each with kind ar1, ar1-volatility, iid, var or lifecycle and its own settings)"
 
 func (s *productSpec) decode(m *mapping) {
 	list, ok := m.list("components", componentsWant)
@@ -76,6 +79,9 @@ func (s *productSpec) check(r *reporter, at loc) bool {
 	if !ok {
 		return false
 	}
+	if !s.checkAges(r) {
+		return false
+	}
 	total := 1
 	var sizes []string
 	for _, p := range s.parts {
@@ -92,6 +98,63 @@ func (s *productSpec) check(r *reporter, at loc) bool {
 		return false
 	}
 	return true
+}
+
+// checkAges checks a product with a life-cycle component: every component
+// univariate, every life cycle with the same number of ages.
+func (s *productSpec) checkAges(r *reporter) bool {
+	if !s.hasAges() {
+		return true
+	}
+	moves := -1
+	for _, p := range s.parts {
+		if !contains(ageComponentKinds, p.kind.v) {
+			r.add(p.kind.at, ErrRule, "kind %s cannot join a life-cycle product: want %s (univariate, so that the chain describes the sum of the components)", p.kind.v, strings.Join(ageComponentKinds, ", "))
+			return false
+		}
+		if lc, ok := p.spec.(*lifecycleSpec); ok {
+			n := len(lc.rho.values)
+			if moves >= 0 && n != moves {
+				what := fmt.Sprintf("%d numbers", n)
+				if n == 1 {
+					what = "1 number"
+				}
+				r.add(lc.rho.at, ErrRule, "the list has %s: want %d, as the first life-cycle component (its ages must line up)", what, moves)
+				return false
+			}
+			moves = n
+		}
+	}
+	return true
+}
+
+// hasAges reports whether a component is a life cycle.
+func (s *productSpec) hasAges() bool {
+	for _, p := range s.parts {
+		if _, ok := p.spec.(*lifecycleSpec); ok {
+			return true
+		}
+	}
+	return false
+}
+
+// ageModel: a product with a life-cycle component is a life cycle
+// (productAges); without one it has a single chain (model).
+func (s *productSpec) ageModel() AgeModel {
+	if !s.hasAges() {
+		return nil
+	}
+	m := productAges{}
+	for _, p := range s.parts {
+		part := agePart{settings: p.settings}
+		if lc, ok := p.spec.(*lifecycleSpec); ok {
+			part.ages = lc.ageModel().(lifecycleModel)
+		} else {
+			part.model = p.spec.model()
+		}
+		m.parts = append(m.parts, part)
+	}
+	return m
 }
 
 func (s *productSpec) composite() {}
@@ -113,6 +176,9 @@ func (s *productSpec) canonical(o object) {
 }
 
 func (s *productSpec) model() Model {
+	if s.hasAges() {
+		return nil
+	}
 	m := productModel{}
 	for _, p := range s.parts {
 		part := p.spec.model()

@@ -1,6 +1,7 @@
 package report
 
 import (
+	"encoding/json"
 	"errors"
 	"fmt"
 	"io/fs"
@@ -117,7 +118,8 @@ func jobOf(s *formats.Set) (Job, error) {
 			return Job{}, fmt.Errorf("point %d age %d has no chain", rec.Point, rec.Age)
 		}
 		if len(j.Points) == 0 || j.Points[len(j.Points)-1].Index != rec.Point {
-			j.Points = append(j.Points, Point{Index: rec.Point, Params: rec.Params, SpecHash: rec.SpecHash})
+			j.Points = append(j.Points, Point{Index: rec.Point, Params: rec.Params, SpecHash: rec.SpecHash,
+				YearsPerPeriod: yearsPerPeriod(rec.Spec)})
 		}
 		pt := &j.Points[len(j.Points)-1]
 		if rec.Chain.Transition == nil {
@@ -135,7 +137,10 @@ func jobOf(s *formats.Set) (Job, error) {
 			return Job{}, errors.New("a chain's diagnostics do not cover its states")
 		}
 		law.Mean, law.SD = diag.True.Mean, diag.True.SD
-		cs := figures.Case{Chain: rec.Chain, Diag: &diag, BaselineDiag: rec.Baseline, Law: law}
+		// A life-cycle product's diagnostics describe the sum of the
+		// coordinates (manifests: productAges).
+		sumDiag := rec.Chain.Dim > 1 && (rec.Age > 0 || rec.Initial != nil)
+		cs := figures.Case{Chain: rec.Chain, Diag: &diag, BaselineDiag: rec.Baseline, Law: law, SumDiag: sumDiag}
 		pt.Chains = append(pt.Chains, Chain{Case: cs, Age: rec.Age, Initial: rec.Initial})
 	}
 	worst.finish()
@@ -209,4 +214,24 @@ func runRecordChecks(run *Run, dir string) []Check {
 		out = append(out, Check{Subject: batch.RecordFile, Detail: "the run did not succeed (see the run record)"})
 	}
 	return out
+}
+
+// yearsPerPeriod reads a life cycle's years_per_period from its canonical
+// spec: the process's own, or its life-cycle component's; 0 when absent.
+func yearsPerPeriod(spec []byte) float64 {
+	var s struct {
+		Years      float64 `json:"years_per_period"`
+		Components []struct {
+			Years float64 `json:"years_per_period"`
+		} `json:"components"`
+	}
+	if json.Unmarshal(spec, &s) != nil {
+		return 0
+	}
+	for _, c := range s.Components {
+		if c.Years > 0 {
+			return c.Years
+		}
+	}
+	return s.Years
 }

@@ -65,6 +65,9 @@ type Point struct {
 	// transition leaves, and FinalAge its age; nil otherwise.
 	Final    []float64
 	FinalAge int
+	// YearsPerPeriod is the length of a life cycle's model period in
+	// years, when its spec gives one (years_per_period), else 0.
+	YearsPerPeriod float64
 }
 
 // Chain is one chain with what its figures need.
@@ -109,7 +112,7 @@ func (p Point) LifeCycle() bool { return len(p.Chains) > 1 || p.Final != nil }
 
 // AgeFigures returns the life-cycle figure's data for the point.
 func (p Point) AgeFigures(label string) figures.LifeCycle {
-	l := figures.LifeCycle{Label: label}
+	l := figures.LifeCycle{Label: label, YearsPerPeriod: p.YearsPerPeriod}
 	for i, c := range p.Chains {
 		l.Ages = append(l.Ages, float64(c.Age))
 		l.Chains = append(l.Chains, c.Chain)

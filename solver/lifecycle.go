@@ -132,7 +132,7 @@ func (a *AgeChain) Marginals() [][]float64 {
 	out := make([][]float64, len(a.Ages)+1)
 	out[0] = append([]float64(nil), a.Initial...)
 	for t, c := range a.Ages {
-		n := len(a.Grid(t + 1))
+		n := len(a.Grid(t+1)) / c.Dim
 		next := make([]float64, n)
 		for i, w := range out[t] {
 			if w == 0 {

@@ -291,12 +291,12 @@ func showRecord(w io.Writer, r *formats.Reader, rec *formats.Record, next *forma
 	if lifeCycle {
 		fmt.Fprintf(w, "life-cycle age %d: moves from the grid of age %d (rows) to the grid of age %d (columns)\n", rec.Age, rec.Age, rec.Age+1)
 		if next != nil {
-			fmt.Fprintf(w, "grid of age %d: %s\n", rec.Age+1, levelList(next.Chain.Grid))
+			fmt.Fprintf(w, "grid of age %d: %s\n", rec.Age+1, stateList(next.Chain))
 		}
 		fmt.Fprintln(w)
 	}
 	if c.Dim > 1 || rec.Vector != nil {
-		return printVectorRecord(w, r.Header.Kind, rec)
+		return printVectorRecord(w, r.Header.Kind, rec, lifeCycle)
 	}
 	rep := chainReport{Kind: r.Header.Kind, Chain: c, Diag: rec.Diag}
 	if lifeCycle {

@@ -8,6 +8,7 @@ import (
 	"text/tabwriter"
 
 	"gridstage/formats"
+	"gridstage/solver"
 )
 
 // maxShownStates is the largest chain whose transition matrix inspect
@@ -23,11 +24,25 @@ func levelList(levels []float64) string {
 	return strings.Join(parts, " ")
 }
 
+// stateList writes a chain's states compactly: levels for a univariate
+// chain, one parenthesized vector per state otherwise.
+func stateList(c *solver.Chain) string {
+	if c.Dim == 1 {
+		return levelList(c.Grid)
+	}
+	parts := make([]string, c.States())
+	for i := range parts {
+		parts[i] = "(" + levelList(c.State(i)) + ")"
+	}
+	return strings.Join(parts, " ")
+}
+
 // printVectorRecord shows a chain whose state is a vector (kinds var,
 // ar1-volatility, product): each state's vector with the largest standardized errors of
 // its conditional mean vector and covariance matrix, the transition matrix
-// when it is small, and the stationary moments of chain and process.
-func printVectorRecord(w io.Writer, kind string, rec *formats.Record) error {
+// when it is small, and the stationary moments of chain and process. An
+// age of a life-cycle product is diagnosed for the sum of its coordinates.
+func printVectorRecord(w io.Writer, kind string, rec *formats.Record, lifeCycle bool) error {
 	c, v, bv := rec.Chain, rec.Vector, rec.BaselineVector
 	d, n := c.Dim, c.States()
 	fmt.Fprintf(w, "%s chain (d = %d), method %s, %d states, %d moments requested, %d of %d states matched them all\n",
@@ -43,9 +58,12 @@ func printVectorRecord(w io.Writer, kind string, rec *formats.Record) error {
 		head += fmt.Sprintf("x%d\t", k)
 	}
 	head += "stationary\tmatched\t"
-	if v != nil {
+	switch {
+	case v != nil:
 		head += "mean err\tcov err\t"
-	} else {
+	case lifeCycle:
+		head += "sum mean err\tsum var err\t"
+	default:
 		head += "x0 mean err\tx0 var err\t"
 	}
 	fmt.Fprintln(tw, head)
@@ -68,8 +86,11 @@ func printVectorRecord(w io.Writer, kind string, rec *formats.Record) error {
 		fmt.Fprintln(tw, line)
 	}
 	tw.Flush()
-	if v != nil {
+	switch {
+	case v != nil:
 		fmt.Fprintln(w, "(largest error over components, in standardized units: L^-1 (mean error) and L^-1 (cov error) L^-T, with L L^T the true conditional covariance)")
+	case lifeCycle:
+		fmt.Fprintln(w, "(errors of the sum of the coordinates next period against the sum of the components' conditional moments, in standardized units)")
 	}
 
 	if n <= maxShownStates {

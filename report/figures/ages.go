@@ -4,6 +4,7 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"strings"
 
 	"gonum.org/v1/plot/plotter"
 	"gonum.org/v1/plot/vg"
@@ -12,20 +13,25 @@ import (
 	"gridstage/solver"
 )
 
-// LifeCycle is an age-varying chain: one univariate chain per age.
-// Figures read it and never modify it.
+// LifeCycle is an age-varying chain: one chain per age. A chain whose
+// state is a vector (a life-cycle product: persistent plus transitory
+// income) is drawn by the sum of its coordinates. Figures read it and
+// never modify it.
 type LifeCycle struct {
 	// Label names the process in titles; Units the state levels.
 	Label, Units string
-	// Ages holds the age of each period, ascending: one per chain, plus
-	// one for Final when it is given.
+	// Ages holds the age of each period, ascending, in model periods: one
+	// per chain, plus one for Final when it is given.
 	Ages []float64
+	// YearsPerPeriod, when > 0, is the length of one model period in
+	// years (the manifest's years_per_period); the axis says so.
+	YearsPerPeriod float64
 	// Chains[t] holds the age-t grid, and its transition matrix moves
 	// from the age-t grid to the age-(t+1) grid. All ages have the same
 	// number of states.
 	Chains []*solver.Chain
 	// Final optionally holds the grid of the last age, which no transition
-	// leaves (solver.AgeChain.Final).
+	// leaves (solver.AgeChain.Final), with the chains' dimension.
 	Final []float64
 	// Initial is the distribution over the first age's grid. If nil, the
 	// stationary distribution of the first age's matrix is used instead
@@ -62,15 +68,23 @@ func AgeMassOf(l LifeCycle) (AgeMass, error) {
 	if T == 0 || len(l.Ages) != want {
 		return AgeMass{}, fmt.Errorf("figures: life cycle has %d chains, %d final grid(s) and %d ages; want one age per grid", T, want-T, len(l.Ages))
 	}
-	n := l.Chains[0].States()
-	if l.Final != nil && len(l.Final) != n {
-		return AgeMass{}, fmt.Errorf("figures: final grid has %d states, want %d", len(l.Final), n)
+	n, dim := l.Chains[0].States(), l.Chains[0].Dim
+	if l.Final != nil && len(l.Final) != n*dim {
+		return AgeMass{}, fmt.Errorf("figures: final grid has %d values, want %d states of dimension %d", len(l.Final), n, dim)
 	}
 	for t, c := range l.Chains {
 		checkChain(c)
-		if c.Dim != 1 || c.States() != n {
-			return AgeMass{}, fmt.Errorf("figures: life-cycle chain at age %g has dimension %d and %d states; want 1 and %d", l.Ages[t], c.Dim, c.States(), n)
+		if c.Dim != dim || c.States() != n {
+			return AgeMass{}, fmt.Errorf("figures: life-cycle chain at age %g has dimension %d and %d states; want %d and %d", l.Ages[t], c.Dim, c.States(), dim, n)
 		}
+	}
+	// level is a state's coordinate, or the sum of its coordinates.
+	level := func(grid []float64, i int) float64 {
+		var s float64
+		for _, x := range grid[i*dim : (i+1)*dim] {
+			s += x
+		}
+		return s
 	}
 	var am AgeMass
 	m := append([]float64(nil), l.Initial...)
@@ -93,12 +107,12 @@ func AgeMassOf(l LifeCycle) (AgeMass, error) {
 		var mean, m2 float64
 		for i, p := range m {
 			am.Age = append(am.Age, l.Ages[t])
-			am.Level = append(am.Level, grid[i])
+			am.Level = append(am.Level, level(grid, i))
 			am.Prob = append(am.Prob, p)
-			mean += p * grid[i]
+			mean += p * level(grid, i)
 		}
 		for i, p := range m {
-			d := grid[i] - mean
+			d := level(grid, i) - mean
 			m2 += p * d * d
 		}
 		am.Mean = append(am.Mean, mean)
@@ -131,6 +145,18 @@ func agesFigure(l LifeCycle, am AgeMass, ages []float64) Figure {
 	if units == "" {
 		units = "state level (units of the process)"
 	}
+	if d := l.Chains[0].Dim; d > 1 {
+		terms := make([]string, d)
+		for k := range terms {
+			terms[k] = fmt.Sprintf("x%d", k)
+		}
+		units = "sum of the coordinates, " + strings.Join(terms, " + ")
+		sub += " · points with the same sum overlap"
+	}
+	ageAxis := "age (model period)"
+	if l.YearsPerPeriod > 0 {
+		ageAxis = fmt.Sprintf("age (model period; one period = %g years)", l.YearsPerPeriod)
+	}
 	return Figure{
 		Name:    "ages",
 		Title:   "Grid and probability mass by age",
@@ -138,7 +164,7 @@ func agesFigure(l LifeCycle, am AgeMass, ages []float64) Figure {
 		Width:   18 * vg.Centimeter, Height: 11 * vg.Centimeter,
 		draw: func(dc draw.Canvas) {
 			body := drawHeader(dc, "Life cycle · "+l.Label, sub)
-			p := newPlot("age (years)", units)
+			p := newPlot(ageAxis, units)
 			addRules(p)
 			var pmax float64
 			for _, v := range am.Prob {

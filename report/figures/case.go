@@ -23,6 +23,9 @@ type Case struct {
 	BaselineDiag *solver.Diagnostics
 	// Law is the true stationary law of the process.
 	Law Law
+	// SumDiag reports that Diag describes the sum of the state's
+	// coordinates (an age of a life-cycle product), not its first one.
+	SumDiag bool
 }
 
 // Law is the true stationary law of a process, as far as figures draw it.

@@ -128,7 +128,10 @@ func momentsFigure(c Case, m MomentErrors) Figure {
 	if len(m.Series) > 1 {
 		sub += " · baseline " + m.Series[1].Method
 	}
-	if c.Chain.Dim > 1 {
+	switch {
+	case c.Chain.Dim > 1 && c.SumDiag:
+		sub += fmt.Sprintf(" · errors of the sum of the %d levels", c.Chain.Dim)
+	case c.Chain.Dim > 1:
 		sub += fmt.Sprintf(" · errors of x0, the first of %d levels", c.Chain.Dim)
 	}
 	return Figure{
