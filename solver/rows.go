@@ -69,6 +69,13 @@ const quickIter = 12
 // neighbour; on a symmetric problem (scalarMirror) only one half is solved
 // and the other mirrored.
 func maxentRows(nodes, logW []float64, law conditional, L int, match Matching, trans []float64, matched []int, certs []Certificate) {
+	maxentRowsKeep(nodes, logW, law, L, match, trans, matched, certs, nil)
+}
+
+// maxentRowsKeep is maxentRows that also records, in keep (when not nil),
+// every state's multipliers and which states are mirrors, for
+// scalarRowSens.
+func maxentRowsKeep(nodes, logW []float64, law conditional, L int, match Matching, trans []float64, matched []int, certs []Certificate, keep *rowMultipliers) {
 	n, m := len(nodes), len(law.Mean)
 	targets := shockTargets(law.Shock, L)
 	logq := make([]float64, n)
@@ -106,6 +113,19 @@ func maxentRows(nodes, logW []float64, law conditional, L int, match Matching, t
 		}
 		sol := policy.solveState(pr, trans[i*n:(i+1)*n])
 		matched[i], certs[i] = sol.Level, sol.Cert
+		if keep != nil {
+			lam, curv := policy.multipliers()
+			keep.lam[i] = append([]float64(nil), lam...)
+			if curv != nil {
+				keep.regH[i] = append([]float64(nil), curv...)
+			}
+		}
+	}
+	if keep != nil {
+		keep.lam, keep.regH, keep.mirror = make([][]float64, m), make([][]float64, m), make([]int, m)
+		for i := range keep.mirror {
+			keep.mirror[i] = -1
+		}
 	}
 	mirror := scalarMirror(nodes, logW, law)
 	mid := (m - 1) / 2
@@ -126,6 +146,9 @@ func maxentRows(nodes, logW []float64, law conditional, L int, match Matching, t
 			}
 			mirrorRow(trans[i*n:(i+1)*n], trans[k*n:(k+1)*n])
 			matched[i], certs[i] = matched[k], certs[k]
+			if keep != nil {
+				keep.mirror[i] = k
+			}
 		}
 		return
 	}

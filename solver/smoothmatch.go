@@ -37,21 +37,27 @@ type smoothMatch struct {
 	stash []float64
 	warmL int
 	stshL int
-	// lam is the last solution's multipliers (for sensitivities).
-	lam []float64
+	// lam and curv are the last solution's multipliers and the penalty's
+	// curvature there (for sensitivities); cols is their length.
+	lam, curv []float64
+	cols      int
 }
 
 var _ matchPolicy = (*smoothMatch)(nil)
 
 func newSmoothMatch(maxCols int) *smoothMatch {
 	return &smoothMatch{b: make([]float64, maxCols), c: make([]float64, maxCols), tol: make([]float64, maxCols),
-		warm: make([]float64, maxCols), stash: make([]float64, maxCols), lam: make([]float64, maxCols),
+		warm: make([]float64, maxCols), stash: make([]float64, maxCols), lam: make([]float64, maxCols), curv: make([]float64, maxCols),
 		warmL: -1, stshL: -1}
 }
 
 func (m *smoothMatch) stashWarm() {
 	copy(m.stash, m.warm)
 	m.stshL = m.warmL
+}
+
+func (m *smoothMatch) multipliers() (lam, curvature []float64) {
+	return m.lam[:m.cols], m.curv[:m.cols]
 }
 
 func (m *smoothMatch) restoreWarm() {
@@ -89,6 +95,8 @@ func (m *smoothMatch) solveState(pr *stateProblem, row []float64) stateSolution 
 		lam, ok = m.dual.solve(pr.logq, dev, cols, m.b[:cols], m.c[:cols], m.tol[:cols], nil, row)
 	}
 	copy(m.lam, lam)
+	copy(m.curv, m.dual.regH[:cols])
+	m.cols = cols
 	if ok {
 		copy(m.warm, lam)
 		m.warmL = l

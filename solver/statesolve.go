@@ -47,6 +47,11 @@ type matchPolicy interface {
 	// current again (to go on from a state other than the last solved).
 	stashWarm()
 	restoreWarm()
+	// multipliers returns the multipliers of the last state solved (one
+	// per moment function of the level it matched; empty for a prior row)
+	// and the curvature the policy added to the dual's Hessian there (nil
+	// for none). Both are views valid until the next solve.
+	multipliers() (lam, curvature []float64)
 }
 
 // exactMatch is maximum-entropy matching with exact moment constraints
@@ -59,6 +64,7 @@ type exactMatch struct {
 	warmL, stashL int
 	quick         int // Newton budget before the exact tests run
 	neg           []float64
+	lastCols      int // columns of the last state's multipliers (in warm)
 }
 
 var _ matchPolicy = (*exactMatch)(nil)
@@ -77,6 +83,8 @@ func (m *exactMatch) restoreWarm() {
 	copy(m.warm, m.stash)
 	m.warmL = m.stashL
 }
+
+func (m *exactMatch) multipliers() (lam, curvature []float64) { return m.warm[:m.lastCols], nil }
 
 // solveState runs the staged solve at each level in turn: a short Newton
 // run from the warm start, which settles every target away from the hull's
@@ -104,6 +112,7 @@ func (m *exactMatch) solveState(pr *stateProblem, row []float64) stateSolution {
 		if ok {
 			copy(m.warm, lam)
 			m.warmL = l
+			m.lastCols = cols
 			cert := CertSolved
 			if idx > 0 {
 				cert = CertInfeasible
@@ -119,6 +128,7 @@ func (m *exactMatch) solveState(pr *stateProblem, row []float64) stateSolution {
 	}
 	priorRow(pr.logq, row)
 	m.warmL = -1
+	m.lastCols = 0
 	cert := CertInfeasible
 	if !proven {
 		cert = CertUnproven

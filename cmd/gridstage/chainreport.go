@@ -26,6 +26,35 @@ type chainReport struct {
 	Advice string
 	// Provenance identifies a chain made by `discretize`; nil elsewhere.
 	Provenance *provenance
+	// Sensitivities are the chain's parameter derivatives, when asked for.
+	Sensitivities *solver.Sensitivity
+}
+
+// sensitivityJSON is the JSON shape of a chain's parameter derivatives:
+// for each parameter, the derivative of the grid (one array per state),
+// of the transition matrix (rows) and of the stationary distribution.
+type sensitivityJSON struct {
+	Params     []string               `json:"params"`
+	Grid       map[string][][]float64 `json:"grid"`
+	Transition map[string][][]float64 `json:"transition"`
+	Stationary map[string][]float64   `json:"stationary"`
+}
+
+func sensitivityRows(s *solver.Sensitivity, c *solver.Chain) *sensitivityJSON {
+	if s == nil {
+		return nil
+	}
+	n, d := c.States(), c.Dim
+	out := &sensitivityJSON{Params: s.Params, Grid: map[string][][]float64{}, Transition: map[string][][]float64{}, Stationary: map[string][]float64{}}
+	for k, name := range s.Params {
+		g, t := make([][]float64, n), make([][]float64, n)
+		for i := 0; i < n; i++ {
+			g[i] = s.Grid[k][i*d : (i+1)*d]
+			t[i] = s.Transition[k][i*n : (i+1)*n]
+		}
+		out.Grid[name], out.Transition[name], out.Stationary[name] = g, t, s.Stationary[k]
+	}
+	return out
 }
 
 // chainJSON is the JSON shape (contract: grid is an array of state vectors,
@@ -47,6 +76,8 @@ type chainJSON struct {
 	Matched     []int              `json:"matched"`
 	Diagnostics solver.Diagnostics `json:"diagnostics"`
 	Baseline    *baselineJSON      `json:"baseline,omitempty"`
+	// Sensitivities holds the parameter derivatives (--sensitivities).
+	Sensitivities *sensitivityJSON `json:"sensitivities,omitempty"`
 	*provenance
 }
 
@@ -79,7 +110,7 @@ func (r chainReport) print(w io.Writer, asJSON bool) error {
 			Kind: r.Kind, Process: r.Process, Method: r.Chain.Method.String(), Moments: r.Chain.Moments,
 			Grid: gridRows(r.Chain), Transition: transitionRows(r.Chain), Stationary: r.Diag.Stationary,
 			Matched: r.Chain.Matched, Diagnostics: r.Diag, provenance: r.Provenance, Degenerate: r.Diag.Degenerate,
-			Advice: r.Advice,
+			Advice: r.Advice, Sensitivities: sensitivityRows(r.Sensitivities, r.Chain),
 		}
 		if j.Stationary == nil {
 			j.StationaryReason = r.Diag.StationaryErr

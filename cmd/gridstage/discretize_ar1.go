@@ -1,6 +1,9 @@
 package main
 
 import (
+	"errors"
+	"fmt"
+
 	"github.com/spf13/cobra"
 
 	"gridstage/solver"
@@ -11,6 +14,7 @@ func newAR1Cmd() *cobra.Command {
 		rho, sigma, mean float64
 		ms               methodSettings
 		shock            shockFlags
+		withSens         bool
 	)
 	cmd := &cobra.Command{
 		Use:   "ar1 --rho R --sigma S [--mean M] --states N [flags]",
@@ -50,6 +54,11 @@ func newAR1Cmd() *cobra.Command {
 			}
 			out := chainReport{Kind: "ar1", Process: ar1Params(p, shock), Chain: sol.Chain, Diag: sol.Diagnostics,
 				Baseline: sol.Baseline, BaselineDiag: sol.BaselineDiagnostics, Provenance: &prov, Advice: advice}
+			if withSens {
+				if out.Sensitivities, err = ar1Sensitivities(p, s, sol.Chain); err != nil {
+					return err
+				}
+			}
 			return out.print(cmd.OutOrStdout(), ms.json)
 		},
 	}
@@ -57,9 +66,28 @@ func newAR1Cmd() *cobra.Command {
 	fs.Float64Var(&rho, "rho", 0, "persistence, in (-1, 1) (required)")
 	fs.Float64Var(&sigma, "sigma", 0, "innovation standard deviation, > 0 (required)")
 	fs.Float64Var(&mean, "mean", 0, "unconditional mean")
+	fs.BoolVar(&withSens, "sensitivities", false, "add the derivatives of the grid, the transition matrix and the stationary distribution with respect to mean, rho and sigma to the JSON (maxent; normal or t innovation)")
 	ms.register(cmd, true)
 	shock.register(fs, "innovation", "normal", "innovation law: normal, mixture, t or laplace (standardized to mean 0, variance 1)")
 	return cmd
+}
+
+// ar1Sensitivities differentiates the chain discretize solved; the chain
+// the derivatives belong to must be the same one, bit for bit.
+func ar1Sensitivities(p solver.AR1, s solver.Settings, solved *solver.Chain) (*solver.Sensitivity, error) {
+	c, sens, err := p.Sensitivities(s)
+	if errors.Is(err, solver.ErrNoSensitivities) {
+		return nil, badInput("--sensitivities needs --method maxent and --innovation normal or t")
+	}
+	if err != nil {
+		return nil, err
+	}
+	for k, v := range c.Transition {
+		if v != solved.Transition[k] {
+			return nil, fmt.Errorf("gridstage: the chain differentiated differs from the chain solved at entry %d", k)
+		}
+	}
+	return sens, nil
 }
 
 // needsNormal refuses adda-cooper, as the chain's or the baseline's method,

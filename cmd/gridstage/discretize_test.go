@@ -204,3 +204,48 @@ func TestDiscretizeSmoothMatching(t *testing.T) {
 		}
 	}
 }
+
+// TestDiscretizeSensitivitiesJSON: --sensitivities adds the derivatives
+// with respect to mean, rho and sigma; every row of a transition
+// derivative sums to zero (rows of P sum to one for every parameter), to
+// 1e-10: each entry is p_j (ȧ_j − E ȧ), and the log-weight derivatives ȧ
+// reach 1e3 to 1e4 where multipliers are large, so their rounding is
+// about 1e-12 per entry. Their accuracy against
+// finite differences is solver.TestSensitivitiesAgainstFiniteDifferences.
+func TestDiscretizeSensitivitiesJSON(t *testing.T) {
+	code, out, errOut := run(t, "discretize", "ar1", "--rho", "0.95", "--sigma", "0.1", "--states", "7", "--matching", "smooth", "--sensitivities", "--json")
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, errOut)
+	}
+	var v struct {
+		Sensitivities struct {
+			Params     []string               `json:"params"`
+			Transition map[string][][]float64 `json:"transition"`
+			Stationary map[string][]float64   `json:"stationary"`
+		} `json:"sensitivities"`
+	}
+	if err := json.Unmarshal([]byte(out), &v); err != nil {
+		t.Fatal(err)
+	}
+	if strings.Join(v.Sensitivities.Params, ",") != "mean,rho,sigma" {
+		t.Fatalf("params = %v", v.Sensitivities.Params)
+	}
+	for _, name := range v.Sensitivities.Params {
+		rows := v.Sensitivities.Transition[name]
+		if len(rows) != 7 || len(v.Sensitivities.Stationary[name]) != 7 {
+			t.Fatalf("%s: %d rows, %d stationary entries, want 7", name, len(rows), len(v.Sensitivities.Stationary[name]))
+		}
+		for i, r := range rows {
+			var s float64
+			for _, x := range r {
+				s += x
+			}
+			if math.Abs(s) > 1e-10 {
+				t.Errorf("d row %d / d%s sums to %g", i, name, s)
+			}
+		}
+	}
+	if code, _, errOut := run(t, "discretize", "ar1", "--rho", "0.9", "--sigma", "0.1", "--method", "tauchen", "--sensitivities", "--json"); code != 2 || !strings.Contains(errOut, "--sensitivities needs --method maxent") {
+		t.Errorf("tauchen with --sensitivities: exit %d, %q", code, errOut)
+	}
+}
