@@ -236,12 +236,17 @@ func (h *host) stage(ctx context.Context, st *StageSpec) error {
 		req := plugin.EstimateRequest{Model: es.Model, Params: es.Params}
 		for _, ref := range refs {
 			in := plugin.ChainInput{Ref: ref}
-			if d.Can(plugin.CapChainInline) {
+			if d.Can(plugin.CapChainInline) || d.Can(plugin.CapSensitivities) {
 				if h.opt.Loader == nil {
 					return fmt.Errorf("stage %s wants chains inline but this host has no chain reader", st.Name)
 				}
 				if in.Data, err = h.opt.Loader.Load(ctx, ref); err != nil {
 					return err
+				}
+			}
+			if d.Can(plugin.CapSensitivities) {
+				if err := attachSensitivities(in.Data); err != nil {
+					return fmt.Errorf("%s: stage %s asks for sensitivities of chain %s (%s point %d): %w", field, st.Name, ref.ChainHash, ref.Process, ref.Point, err)
 				}
 			}
 			req.Chains = append(req.Chains, in)

@@ -44,6 +44,9 @@ func dataToProto(d *ChainData) *stagepb.ChainData {
 	for _, m := range d.Matched {
 		p.Matched = append(p.Matched, int32(m))
 	}
+	for _, s := range d.Sensitivities {
+		p.Sensitivities = append(p.Sensitivities, &stagepb.ChainSensitivity{Param: s.Param, Grid: s.Grid, Transition: s.Transition, Stationary: s.Stationary})
+	}
 	return p
 }
 
@@ -51,6 +54,9 @@ func dataFromProto(p *stagepb.ChainData) *ChainData {
 	d := &ChainData{Dim: int(p.GetDim()), Grid: p.GetGrid(), Transition: p.GetTransition()}
 	for _, m := range p.GetMatched() {
 		d.Matched = append(d.Matched, int(m))
+	}
+	for _, s := range p.GetSensitivities() {
+		d.Sensitivities = append(d.Sensitivities, Sensitivity{Param: s.GetParam(), Grid: s.GetGrid(), Transition: s.GetTransition(), Stationary: s.GetStationary()})
 	}
 	if p.GetHasInitial() {
 		d.Initial = p.GetInitial()

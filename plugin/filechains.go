@@ -58,7 +58,7 @@ func (l *FileLoader) Load(ctx context.Context, ref ChainRef) (*ChainData, error)
 		return nil, fmt.Errorf("%s point %d is a life-cycle chain with %d ages; stages receive time-invariant chains only", ref.Path, ref.Point, len(recs))
 	}
 	r := recs[0]
-	d := &ChainData{Dim: r.Chain.Dim, Grid: r.Chain.Grid, Transition: r.Chain.Transition, Matched: r.Chain.Matched, Initial: r.Initial}
+	d := &ChainData{Dim: r.Chain.Dim, Grid: r.Chain.Grid, Transition: r.Chain.Transition, Matched: r.Chain.Matched, Initial: r.Initial, Spec: r.Spec}
 	return d, nil
 }
 

@@ -12,6 +12,11 @@ import (
 // stagepb (gridstage.stage.v1).
 const ProtocolVersion = 1
 
+// ProtocolMinor is the minor version of the protocol: additions that older
+// stages ignore. Minor 1 adds ChainData.Sensitivities, filled for stages
+// that list CapSensitivities.
+const ProtocolMinor = 1
+
 // ProtocolVersions lists every stage protocol version this build speaks.
 var ProtocolVersions = []int{ProtocolVersion}
 
@@ -34,6 +39,9 @@ const (
 	CapEstimate    = "estimate"     // implements Estimate
 	CapArrowStream = "arrow-stream" // Discretize can stream chains as Arrow IPC
 	CapChainInline = "chain-inline" // Estimate wants ChainInput.Data filled by the host
+	// CapSensitivities: Estimate wants ChainInput.Data filled by the host
+	// with the chain's parameter sensitivities (protocol minor 1).
+	CapSensitivities = "sensitivities"
 )
 
 // Stage is what every stage implements. Every call takes the caller's
@@ -105,6 +113,23 @@ type ChainData struct {
 	Transition []float64 // row-major
 	Matched    []int     // moments matched per state
 	Initial    []float64 // nil when absent
+	// Sensitivities are the chain's derivatives with respect to its
+	// process's parameters, for stages listing CapSensitivities.
+	Sensitivities []Sensitivity
+	// Spec is the chain's canonical spec as its file records it; the host
+	// keeps it to compute sensitivities, and the protocol does not carry it.
+	Spec []byte
+}
+
+// Sensitivity holds the derivatives of a chain with respect to one
+// parameter: of every grid coordinate (laid out like ChainData.Grid), of
+// every transition probability (like Transition) and of the stationary
+// distribution.
+type Sensitivity struct {
+	Param      string
+	Grid       []float64
+	Transition []float64
+	Stationary []float64
 }
 
 // States returns the number of states.

@@ -5,6 +5,10 @@
 // Models and their parameters (request params, by name):
 //
 //	burnside      beta, theta                         Burnside (1998) price-dividend ratio
+//	burnside-slope beta, theta [mean, rho, sigma]     its derivative in each process parameter, by
+//	                                                  implicit differentiation of the pricing equation
+//	                                                  with the chain's sensitivities; with the AR(1)'s
+//	                                                  mean, rho and sigma, also the closed form's d/drho
 //	brock-mirman  alpha, beta [capital_points, capital_low, capital_high]
 //	                                                  Brock and Mirman (1972) growth by value-function iteration
 //	savings       beta, gamma, rate [limit, asset_points, asset_max]
@@ -40,7 +44,7 @@ type Stage struct {
 var _ plugin.Stage = (*Stage)(nil)
 
 // Models lists the models Estimate accepts.
-var Models = []string{"burnside", "brock-mirman", "savings"}
+var Models = []string{"burnside", "burnside-slope", "brock-mirman", "savings"}
 
 // Describe names the stage.
 func (s *Stage) Describe(context.Context) (plugin.Description, error) {
@@ -48,7 +52,7 @@ func (s *Stage) Describe(context.Context) (plugin.Description, error) {
 		Name:             Name,
 		Version:          version.Tool,
 		ProtocolVersions: plugin.ProtocolVersions,
-		Capabilities:     []string{plugin.CapEstimate},
+		Capabilities:     []string{plugin.CapEstimate, plugin.CapSensitivities},
 		Models:           Models,
 	}, nil
 }
@@ -88,7 +92,7 @@ func (s *Stage) Estimate(ctx context.Context, req plugin.EstimateRequest) ([]plu
 		if err != nil {
 			return nil, err
 		}
-		e, err := solve(c)
+		e, err := solve(c, data.Sensitivities)
 		if err != nil {
 			return nil, fmt.Errorf("model %s on chain %s (%s point %d): %w", req.Model, in.Ref.ChainHash, in.Ref.Process, in.Ref.Point, err)
 		}
@@ -195,9 +199,9 @@ func paramError(model string, err error) error {
 }
 
 // solverFor validates the parameters of a model and returns its solver.
-func solverFor(model string, m map[string]float64) (func(models.Chain) (plugin.Estimate, error), error) {
+func solverFor(model string, m map[string]float64) (func(models.Chain, []plugin.Sensitivity) (plugin.Estimate, error), error) {
 	p := &params{model: model, m: m, used: map[string]bool{}}
-	var solve func(models.Chain) (plugin.Estimate, error)
+	var solve func(models.Chain, []plugin.Sensitivity) (plugin.Estimate, error)
 	switch model {
 	case "burnside":
 		b := models.Burnside{Beta: p.required("beta"), Theta: p.required("theta")}
@@ -207,7 +211,20 @@ func solverFor(model string, m map[string]float64) (func(models.Chain) (plugin.E
 		if err := b.Validate(); err != nil {
 			return nil, paramError(model, err)
 		}
-		solve = func(c models.Chain) (plugin.Estimate, error) { return burnside(b, c) }
+		solve = func(c models.Chain, _ []plugin.Sensitivity) (plugin.Estimate, error) { return burnside(b, c) }
+	case "burnside-slope":
+		b := models.Burnside{Beta: p.required("beta"), Theta: p.required("theta")}
+		var ar *[3]float64
+		if _, has := m["rho"]; has || m["mean"] != 0 || m["sigma"] != 0 {
+			ar = &[3]float64{p.required("mean"), p.required("rho"), p.required("sigma")}
+		}
+		if err := p.done(); err != nil {
+			return nil, err
+		}
+		if err := b.Validate(); err != nil {
+			return nil, paramError(model, err)
+		}
+		solve = func(c models.Chain, s []plugin.Sensitivity) (plugin.Estimate, error) { return burnsideSlope(b, ar, c, s) }
 	case "brock-mirman":
 		b := models.BrockMirman{Alpha: p.required("alpha"), Beta: p.required("beta"), Capital: p.integer("capital_points"),
 			Low: p.optional("capital_low", 0), High: p.optional("capital_high", 0)}
@@ -217,7 +234,7 @@ func solverFor(model string, m map[string]float64) (func(models.Chain) (plugin.E
 		if err := b.Validate(); err != nil {
 			return nil, paramError(model, err)
 		}
-		solve = func(c models.Chain) (plugin.Estimate, error) { return brockMirman(b, c) }
+		solve = func(c models.Chain, _ []plugin.Sensitivity) (plugin.Estimate, error) { return brockMirman(b, c) }
 	case "savings":
 		sv := models.Savings{Beta: p.required("beta"), Gamma: p.required("gamma"), Rate: p.required("rate"),
 			Limit: p.optional("limit", 0), Assets: p.integer("asset_points"), AssetMax: p.optional("asset_max", 0)}
@@ -227,12 +244,12 @@ func solverFor(model string, m map[string]float64) (func(models.Chain) (plugin.E
 		if err := sv.Validate(); err != nil {
 			return nil, paramError(model, err)
 		}
-		solve = func(c models.Chain) (plugin.Estimate, error) { return savings(sv, c) }
+		solve = func(c models.Chain, _ []plugin.Sensitivity) (plugin.Estimate, error) { return savings(sv, c) }
 	default:
 		return nil, plugin.BadRequest("unknown model %q: this stage solves %s", model, strings.Join(Models, ", "))
 	}
-	return func(c models.Chain) (plugin.Estimate, error) {
-		e, err := solve(c)
+	return func(c models.Chain, s []plugin.Sensitivity) (plugin.Estimate, error) {
+		e, err := solve(c, s)
 		return e, paramError(model, err)
 	}, nil
 }

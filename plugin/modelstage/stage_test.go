@@ -82,7 +82,7 @@ func TestEstimateBadRequests(t *testing.T) {
 		req  plugin.EstimateRequest
 		want string
 	}{
-		{plugin.EstimateRequest{Model: "lucas", Chains: in}, `unknown model "lucas": this stage solves burnside, brock-mirman, savings`},
+		{plugin.EstimateRequest{Model: "lucas", Chains: in}, `unknown model "lucas": this stage solves burnside, burnside-slope, brock-mirman, savings`},
 		{plugin.EstimateRequest{Model: "burnside", Params: map[string]float64{"beta": 0.9}, Chains: in}, "model burnside needs parameter theta"},
 		{plugin.EstimateRequest{Model: "burnside", Params: map[string]float64{"beta": 0.9, "theta": 1, "gamma": 2}, Chains: in}, "model burnside does not take parameter gamma (it takes beta, theta)"},
 		{plugin.EstimateRequest{Model: "burnside", Params: map[string]float64{"beta": 1.2, "theta": 1}, Chains: in}, "model burnside: parameter beta = 1.2 is out of range: want in (0, 1)"},

@@ -629,8 +629,12 @@ type ChainData struct {
 	// Conditional moments matched exactly in each state.
 	Matched []int32 `protobuf:"varint,4,rep,packed,name=matched,proto3" json:"matched,omitempty"`
 	// Initial distribution, present when has_initial.
-	HasInitial    bool      `protobuf:"varint,5,opt,name=has_initial,json=hasInitial,proto3" json:"has_initial,omitempty"`
-	Initial       []float64 `protobuf:"fixed64,6,rep,packed,name=initial,proto3" json:"initial,omitempty"`
+	HasInitial bool      `protobuf:"varint,5,opt,name=has_initial,json=hasInitial,proto3" json:"has_initial,omitempty"`
+	Initial    []float64 `protobuf:"fixed64,6,rep,packed,name=initial,proto3" json:"initial,omitempty"`
+	// Derivatives of the chain with respect to its process's parameters,
+	// one entry per parameter (protocol 1, minor 1): filled only for a stage
+	// that lists the "sensitivities" capability; older stages never see it.
+	Sensitivities []*ChainSensitivity `protobuf:"bytes,7,rep,name=sensitivities,proto3" json:"sensitivities,omitempty"`
 	unknownFields protoimpl.UnknownFields
 	sizeCache     protoimpl.SizeCache
 }
@@ -707,6 +711,83 @@ func (x *ChainData) GetInitial() []float64 {
 	return nil
 }
 
+func (x *ChainData) GetSensitivities() []*ChainSensitivity {
+	if x != nil {
+		return x.Sensitivities
+	}
+	return nil
+}
+
+// ChainSensitivity holds the derivatives of one chain with respect to one
+// parameter of its process, laid out like ChainData.
+type ChainSensitivity struct {
+	state         protoimpl.MessageState `protogen:"open.v1"`
+	Param         string                 `protobuf:"bytes,1,opt,name=param,proto3" json:"param,omitempty"`
+	Grid          []float64              `protobuf:"fixed64,2,rep,packed,name=grid,proto3" json:"grid,omitempty"`
+	Transition    []float64              `protobuf:"fixed64,3,rep,packed,name=transition,proto3" json:"transition,omitempty"`
+	Stationary    []float64              `protobuf:"fixed64,4,rep,packed,name=stationary,proto3" json:"stationary,omitempty"`
+	unknownFields protoimpl.UnknownFields
+	sizeCache     protoimpl.SizeCache
+}
+
+func (x *ChainSensitivity) Reset() {
+	*x = ChainSensitivity{}
+	mi := &file_stage_proto_msgTypes[9]
+	ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
+	ms.StoreMessageInfo(mi)
+}
+
+func (x *ChainSensitivity) String() string {
+	return protoimpl.X.MessageStringOf(x)
+}
+
+func (*ChainSensitivity) ProtoMessage() {}
+
+func (x *ChainSensitivity) ProtoReflect() protoreflect.Message {
+	mi := &file_stage_proto_msgTypes[9]
+	if x != nil {
+		ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
+		if ms.LoadMessageInfo() == nil {
+			ms.StoreMessageInfo(mi)
+		}
+		return ms
+	}
+	return mi.MessageOf(x)
+}
+
+// Deprecated: Use ChainSensitivity.ProtoReflect.Descriptor instead.
+func (*ChainSensitivity) Descriptor() ([]byte, []int) {
+	return file_stage_proto_rawDescGZIP(), []int{9}
+}
+
+func (x *ChainSensitivity) GetParam() string {
+	if x != nil {
+		return x.Param
+	}
+	return ""
+}
+
+func (x *ChainSensitivity) GetGrid() []float64 {
+	if x != nil {
+		return x.Grid
+	}
+	return nil
+}
+
+func (x *ChainSensitivity) GetTransition() []float64 {
+	if x != nil {
+		return x.Transition
+	}
+	return nil
+}
+
+func (x *ChainSensitivity) GetStationary() []float64 {
+	if x != nil {
+		return x.Stationary
+	}
+	return nil
+}
+
 type ChainInput struct {
 	state protoimpl.MessageState `protogen:"open.v1"`
 	Ref   *ChainRef              `protobuf:"bytes,1,opt,name=ref,proto3" json:"ref,omitempty"`
@@ -718,7 +799,7 @@ type ChainInput struct {
 
 func (x *ChainInput) Reset() {
 	*x = ChainInput{}
-	mi := &file_stage_proto_msgTypes[9]
+	mi := &file_stage_proto_msgTypes[10]
 	ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 	ms.StoreMessageInfo(mi)
 }
@@ -730,7 +811,7 @@ func (x *ChainInput) String() string {
 func (*ChainInput) ProtoMessage() {}
 
 func (x *ChainInput) ProtoReflect() protoreflect.Message {
-	mi := &file_stage_proto_msgTypes[9]
+	mi := &file_stage_proto_msgTypes[10]
 	if x != nil {
 		ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 		if ms.LoadMessageInfo() == nil {
@@ -743,7 +824,7 @@ func (x *ChainInput) ProtoReflect() protoreflect.Message {
 
 // Deprecated: Use ChainInput.ProtoReflect.Descriptor instead.
 func (*ChainInput) Descriptor() ([]byte, []int) {
-	return file_stage_proto_rawDescGZIP(), []int{9}
+	return file_stage_proto_rawDescGZIP(), []int{10}
 }
 
 func (x *ChainInput) GetRef() *ChainRef {
@@ -773,7 +854,7 @@ type EstimateRequest struct {
 
 func (x *EstimateRequest) Reset() {
 	*x = EstimateRequest{}
-	mi := &file_stage_proto_msgTypes[10]
+	mi := &file_stage_proto_msgTypes[11]
 	ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 	ms.StoreMessageInfo(mi)
 }
@@ -785,7 +866,7 @@ func (x *EstimateRequest) String() string {
 func (*EstimateRequest) ProtoMessage() {}
 
 func (x *EstimateRequest) ProtoReflect() protoreflect.Message {
-	mi := &file_stage_proto_msgTypes[10]
+	mi := &file_stage_proto_msgTypes[11]
 	if x != nil {
 		ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 		if ms.LoadMessageInfo() == nil {
@@ -798,7 +879,7 @@ func (x *EstimateRequest) ProtoReflect() protoreflect.Message {
 
 // Deprecated: Use EstimateRequest.ProtoReflect.Descriptor instead.
 func (*EstimateRequest) Descriptor() ([]byte, []int) {
-	return file_stage_proto_rawDescGZIP(), []int{10}
+	return file_stage_proto_rawDescGZIP(), []int{11}
 }
 
 func (x *EstimateRequest) GetModel() string {
@@ -831,7 +912,7 @@ type Vector struct {
 
 func (x *Vector) Reset() {
 	*x = Vector{}
-	mi := &file_stage_proto_msgTypes[11]
+	mi := &file_stage_proto_msgTypes[12]
 	ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 	ms.StoreMessageInfo(mi)
 }
@@ -843,7 +924,7 @@ func (x *Vector) String() string {
 func (*Vector) ProtoMessage() {}
 
 func (x *Vector) ProtoReflect() protoreflect.Message {
-	mi := &file_stage_proto_msgTypes[11]
+	mi := &file_stage_proto_msgTypes[12]
 	if x != nil {
 		ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 		if ms.LoadMessageInfo() == nil {
@@ -856,7 +937,7 @@ func (x *Vector) ProtoReflect() protoreflect.Message {
 
 // Deprecated: Use Vector.ProtoReflect.Descriptor instead.
 func (*Vector) Descriptor() ([]byte, []int) {
-	return file_stage_proto_rawDescGZIP(), []int{11}
+	return file_stage_proto_rawDescGZIP(), []int{12}
 }
 
 func (x *Vector) GetValues() []float64 {
@@ -879,7 +960,7 @@ type Estimate struct {
 
 func (x *Estimate) Reset() {
 	*x = Estimate{}
-	mi := &file_stage_proto_msgTypes[12]
+	mi := &file_stage_proto_msgTypes[13]
 	ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 	ms.StoreMessageInfo(mi)
 }
@@ -891,7 +972,7 @@ func (x *Estimate) String() string {
 func (*Estimate) ProtoMessage() {}
 
 func (x *Estimate) ProtoReflect() protoreflect.Message {
-	mi := &file_stage_proto_msgTypes[12]
+	mi := &file_stage_proto_msgTypes[13]
 	if x != nil {
 		ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 		if ms.LoadMessageInfo() == nil {
@@ -904,7 +985,7 @@ func (x *Estimate) ProtoReflect() protoreflect.Message {
 
 // Deprecated: Use Estimate.ProtoReflect.Descriptor instead.
 func (*Estimate) Descriptor() ([]byte, []int) {
-	return file_stage_proto_rawDescGZIP(), []int{12}
+	return file_stage_proto_rawDescGZIP(), []int{13}
 }
 
 func (x *Estimate) GetModel() string {
@@ -944,7 +1025,7 @@ type EstimateReply struct {
 
 func (x *EstimateReply) Reset() {
 	*x = EstimateReply{}
-	mi := &file_stage_proto_msgTypes[13]
+	mi := &file_stage_proto_msgTypes[14]
 	ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 	ms.StoreMessageInfo(mi)
 }
@@ -956,7 +1037,7 @@ func (x *EstimateReply) String() string {
 func (*EstimateReply) ProtoMessage() {}
 
 func (x *EstimateReply) ProtoReflect() protoreflect.Message {
-	mi := &file_stage_proto_msgTypes[13]
+	mi := &file_stage_proto_msgTypes[14]
 	if x != nil {
 		ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 		if ms.LoadMessageInfo() == nil {
@@ -969,7 +1050,7 @@ func (x *EstimateReply) ProtoReflect() protoreflect.Message {
 
 // Deprecated: Use EstimateReply.ProtoReflect.Descriptor instead.
 func (*EstimateReply) Descriptor() ([]byte, []int) {
-	return file_stage_proto_rawDescGZIP(), []int{13}
+	return file_stage_proto_rawDescGZIP(), []int{14}
 }
 
 func (x *EstimateReply) GetEstimates() []*Estimate {
@@ -1026,7 +1107,7 @@ const file_stage_proto_rawDesc = "" +
 	"\x0fDiscretizeReply\x124\n" +
 	"\x05chain\x18\x01 \x01(\v2\x1c.gridstage.stage.v1.ChainRefH\x00R\x05chain\x126\n" +
 	"\x05arrow\x18\x02 \x01(\v2\x1e.gridstage.stage.v1.ArrowChunkH\x00R\x05arrowB\x06\n" +
-	"\x04item\"\xa6\x01\n" +
+	"\x04item\"\xf2\x01\n" +
 	"\tChainData\x12\x10\n" +
 	"\x03dim\x18\x01 \x01(\rR\x03dim\x12\x12\n" +
 	"\x04grid\x18\x02 \x03(\x01R\x04grid\x12\x1e\n" +
@@ -1036,7 +1117,17 @@ const file_stage_proto_rawDesc = "" +
 	"\amatched\x18\x04 \x03(\x05R\amatched\x12\x1f\n" +
 	"\vhas_initial\x18\x05 \x01(\bR\n" +
 	"hasInitial\x12\x18\n" +
-	"\ainitial\x18\x06 \x03(\x01R\ainitial\"o\n" +
+	"\ainitial\x18\x06 \x03(\x01R\ainitial\x12J\n" +
+	"\rsensitivities\x18\a \x03(\v2$.gridstage.stage.v1.ChainSensitivityR\rsensitivities\"|\n" +
+	"\x10ChainSensitivity\x12\x14\n" +
+	"\x05param\x18\x01 \x01(\tR\x05param\x12\x12\n" +
+	"\x04grid\x18\x02 \x03(\x01R\x04grid\x12\x1e\n" +
+	"\n" +
+	"transition\x18\x03 \x03(\x01R\n" +
+	"transition\x12\x1e\n" +
+	"\n" +
+	"stationary\x18\x04 \x03(\x01R\n" +
+	"stationary\"o\n" +
 	"\n" +
 	"ChainInput\x12.\n" +
 	"\x03ref\x18\x01 \x01(\v2\x1c.gridstage.stage.v1.ChainRefR\x03ref\x121\n" +
@@ -1082,7 +1173,7 @@ func file_stage_proto_rawDescGZIP() []byte {
 	return file_stage_proto_rawDescData
 }
 
-var file_stage_proto_msgTypes = make([]protoimpl.MessageInfo, 18)
+var file_stage_proto_msgTypes = make([]protoimpl.MessageInfo, 19)
 var file_stage_proto_goTypes = []any{
 	(*DescribeRequest)(nil),   // 0: gridstage.stage.v1.DescribeRequest
 	(*Description)(nil),       // 1: gridstage.stage.v1.Description
@@ -1093,41 +1184,43 @@ var file_stage_proto_goTypes = []any{
 	(*ArrowChunk)(nil),        // 6: gridstage.stage.v1.ArrowChunk
 	(*DiscretizeReply)(nil),   // 7: gridstage.stage.v1.DiscretizeReply
 	(*ChainData)(nil),         // 8: gridstage.stage.v1.ChainData
-	(*ChainInput)(nil),        // 9: gridstage.stage.v1.ChainInput
-	(*EstimateRequest)(nil),   // 10: gridstage.stage.v1.EstimateRequest
-	(*Vector)(nil),            // 11: gridstage.stage.v1.Vector
-	(*Estimate)(nil),          // 12: gridstage.stage.v1.Estimate
-	(*EstimateReply)(nil),     // 13: gridstage.stage.v1.EstimateReply
-	nil,                       // 14: gridstage.stage.v1.ChainRef.ParamsEntry
-	nil,                       // 15: gridstage.stage.v1.EstimateRequest.ParamsEntry
-	nil,                       // 16: gridstage.stage.v1.Estimate.ScalarsEntry
-	nil,                       // 17: gridstage.stage.v1.Estimate.VectorsEntry
+	(*ChainSensitivity)(nil),  // 9: gridstage.stage.v1.ChainSensitivity
+	(*ChainInput)(nil),        // 10: gridstage.stage.v1.ChainInput
+	(*EstimateRequest)(nil),   // 11: gridstage.stage.v1.EstimateRequest
+	(*Vector)(nil),            // 12: gridstage.stage.v1.Vector
+	(*Estimate)(nil),          // 13: gridstage.stage.v1.Estimate
+	(*EstimateReply)(nil),     // 14: gridstage.stage.v1.EstimateReply
+	nil,                       // 15: gridstage.stage.v1.ChainRef.ParamsEntry
+	nil,                       // 16: gridstage.stage.v1.EstimateRequest.ParamsEntry
+	nil,                       // 17: gridstage.stage.v1.Estimate.ScalarsEntry
+	nil,                       // 18: gridstage.stage.v1.Estimate.VectorsEntry
 }
 var file_stage_proto_depIdxs = []int32{
-	14, // 0: gridstage.stage.v1.ChainRef.params:type_name -> gridstage.stage.v1.ChainRef.ParamsEntry
+	15, // 0: gridstage.stage.v1.ChainRef.params:type_name -> gridstage.stage.v1.ChainRef.ParamsEntry
 	5,  // 1: gridstage.stage.v1.DiscretizeReply.chain:type_name -> gridstage.stage.v1.ChainRef
 	6,  // 2: gridstage.stage.v1.DiscretizeReply.arrow:type_name -> gridstage.stage.v1.ArrowChunk
-	5,  // 3: gridstage.stage.v1.ChainInput.ref:type_name -> gridstage.stage.v1.ChainRef
-	8,  // 4: gridstage.stage.v1.ChainInput.data:type_name -> gridstage.stage.v1.ChainData
-	15, // 5: gridstage.stage.v1.EstimateRequest.params:type_name -> gridstage.stage.v1.EstimateRequest.ParamsEntry
-	9,  // 6: gridstage.stage.v1.EstimateRequest.chains:type_name -> gridstage.stage.v1.ChainInput
-	16, // 7: gridstage.stage.v1.Estimate.scalars:type_name -> gridstage.stage.v1.Estimate.ScalarsEntry
-	17, // 8: gridstage.stage.v1.Estimate.vectors:type_name -> gridstage.stage.v1.Estimate.VectorsEntry
-	12, // 9: gridstage.stage.v1.EstimateReply.estimates:type_name -> gridstage.stage.v1.Estimate
-	11, // 10: gridstage.stage.v1.Estimate.VectorsEntry.value:type_name -> gridstage.stage.v1.Vector
-	0,  // 11: gridstage.stage.v1.Stage.Describe:input_type -> gridstage.stage.v1.DescribeRequest
-	2,  // 12: gridstage.stage.v1.Stage.Health:input_type -> gridstage.stage.v1.HealthRequest
-	4,  // 13: gridstage.stage.v1.Stage.Discretize:input_type -> gridstage.stage.v1.DiscretizeRequest
-	10, // 14: gridstage.stage.v1.Stage.Estimate:input_type -> gridstage.stage.v1.EstimateRequest
-	1,  // 15: gridstage.stage.v1.Stage.Describe:output_type -> gridstage.stage.v1.Description
-	3,  // 16: gridstage.stage.v1.Stage.Health:output_type -> gridstage.stage.v1.HealthReply
-	7,  // 17: gridstage.stage.v1.Stage.Discretize:output_type -> gridstage.stage.v1.DiscretizeReply
-	13, // 18: gridstage.stage.v1.Stage.Estimate:output_type -> gridstage.stage.v1.EstimateReply
-	15, // [15:19] is the sub-list for method output_type
-	11, // [11:15] is the sub-list for method input_type
-	11, // [11:11] is the sub-list for extension type_name
-	11, // [11:11] is the sub-list for extension extendee
-	0,  // [0:11] is the sub-list for field type_name
+	9,  // 3: gridstage.stage.v1.ChainData.sensitivities:type_name -> gridstage.stage.v1.ChainSensitivity
+	5,  // 4: gridstage.stage.v1.ChainInput.ref:type_name -> gridstage.stage.v1.ChainRef
+	8,  // 5: gridstage.stage.v1.ChainInput.data:type_name -> gridstage.stage.v1.ChainData
+	16, // 6: gridstage.stage.v1.EstimateRequest.params:type_name -> gridstage.stage.v1.EstimateRequest.ParamsEntry
+	10, // 7: gridstage.stage.v1.EstimateRequest.chains:type_name -> gridstage.stage.v1.ChainInput
+	17, // 8: gridstage.stage.v1.Estimate.scalars:type_name -> gridstage.stage.v1.Estimate.ScalarsEntry
+	18, // 9: gridstage.stage.v1.Estimate.vectors:type_name -> gridstage.stage.v1.Estimate.VectorsEntry
+	13, // 10: gridstage.stage.v1.EstimateReply.estimates:type_name -> gridstage.stage.v1.Estimate
+	12, // 11: gridstage.stage.v1.Estimate.VectorsEntry.value:type_name -> gridstage.stage.v1.Vector
+	0,  // 12: gridstage.stage.v1.Stage.Describe:input_type -> gridstage.stage.v1.DescribeRequest
+	2,  // 13: gridstage.stage.v1.Stage.Health:input_type -> gridstage.stage.v1.HealthRequest
+	4,  // 14: gridstage.stage.v1.Stage.Discretize:input_type -> gridstage.stage.v1.DiscretizeRequest
+	11, // 15: gridstage.stage.v1.Stage.Estimate:input_type -> gridstage.stage.v1.EstimateRequest
+	1,  // 16: gridstage.stage.v1.Stage.Describe:output_type -> gridstage.stage.v1.Description
+	3,  // 17: gridstage.stage.v1.Stage.Health:output_type -> gridstage.stage.v1.HealthReply
+	7,  // 18: gridstage.stage.v1.Stage.Discretize:output_type -> gridstage.stage.v1.DiscretizeReply
+	14, // 19: gridstage.stage.v1.Stage.Estimate:output_type -> gridstage.stage.v1.EstimateReply
+	16, // [16:20] is the sub-list for method output_type
+	12, // [12:16] is the sub-list for method input_type
+	12, // [12:12] is the sub-list for extension type_name
+	12, // [12:12] is the sub-list for extension extendee
+	0,  // [0:12] is the sub-list for field type_name
 }
 
 func init() { file_stage_proto_init() }
@@ -1149,7 +1242,7 @@ func file_stage_proto_init() {
 			GoPackagePath: reflect.TypeOf(x{}).PkgPath(),
 			RawDescriptor: unsafe.Slice(unsafe.StringData(file_stage_proto_rawDesc), len(file_stage_proto_rawDesc)),
 			NumEnums:      0,
-			NumMessages:   18,
+			NumMessages:   19,
 			NumExtensions: 0,
 			NumServices:   1,
 		},

@@ -13,7 +13,7 @@ _sym_db = _symbol_database.Default()
 
 
 
-DESCRIPTOR = _descriptor_pool.Default().AddSerializedFile(b'\n\x0bstage.proto\x12\x12gridstage.stage.v1\"1\n\x0f\x44\x65scribeRequest\x12\x1e\n\x16host_protocol_versions\x18\x01 \x03(\r\"m\n\x0b\x44\x65scription\x12\x0c\n\x04name\x18\x01 \x01(\t\x12\x0f\n\x07version\x18\x02 \x01(\t\x12\x19\n\x11protocol_versions\x18\x03 \x03(\r\x12\x14\n\x0c\x63\x61pabilities\x18\x04 \x03(\t\x12\x0e\n\x06models\x18\x05 \x03(\t\"\x0f\n\rHealthRequest\".\n\x0bHealthReply\x12\x0f\n\x07serving\x18\x01 \x01(\x08\x12\x0e\n\x06\x64\x65tail\x18\x02 \x01(\t\"\x80\x01\n\x11\x44iscretizeRequest\x12\x12\n\x08manifest\x18\x01 \x01(\x0cH\x00\x12\x12\n\x08job_spec\x18\x02 \x01(\x0cH\x00\x12\x13\n\x0bsource_name\x18\x03 \x01(\t\x12\x0f\n\x07out_dir\x18\x04 \x01(\t\x12\x14\n\x0cstream_arrow\x18\x05 \x01(\x08\x42\x07\n\x05input\"\xf2\x01\n\x08\x43hainRef\x12\x0c\n\x04path\x18\x01 \x01(\t\x12\x0f\n\x07process\x18\x02 \x01(\t\x12\r\n\x05point\x18\x03 \x01(\r\x12\x12\n\nchain_hash\x18\x04 \x01(\t\x12\x11\n\tspec_hash\x18\x05 \x01(\t\x12\x15\n\rmanifest_hash\x18\x06 \x01(\t\x12\x11\n\tfile_hash\x18\x07 \x01(\t\x12\x38\n\x06params\x18\x08 \x03(\x0b\x32(.gridstage.stage.v1.ChainRef.ParamsEntry\x1a-\n\x0bParamsEntry\x12\x0b\n\x03key\x18\x01 \x01(\t\x12\r\n\x05value\x18\x02 \x01(\x01:\x02\x38\x01\"<\n\nArrowChunk\x12\x12\n\nchain_hash\x18\x01 \x01(\t\x12\x0c\n\x04\x64\x61ta\x18\x02 \x01(\x0c\x12\x0c\n\x04last\x18\x03 \x01(\x08\"y\n\x0f\x44iscretizeReply\x12-\n\x05\x63hain\x18\x01 \x01(\x0b\x32\x1c.gridstage.stage.v1.ChainRefH\x00\x12/\n\x05\x61rrow\x18\x02 \x01(\x0b\x32\x1e.gridstage.stage.v1.ArrowChunkH\x00\x42\x06\n\x04item\"q\n\tChainData\x12\x0b\n\x03\x64im\x18\x01 \x01(\r\x12\x0c\n\x04grid\x18\x02 \x03(\x01\x12\x12\n\ntransition\x18\x03 \x03(\x01\x12\x0f\n\x07matched\x18\x04 \x03(\x05\x12\x13\n\x0bhas_initial\x18\x05 \x01(\x08\x12\x0f\n\x07initial\x18\x06 \x03(\x01\"d\n\nChainInput\x12)\n\x03ref\x18\x01 \x01(\x0b\x32\x1c.gridstage.stage.v1.ChainRef\x12+\n\x04\x64\x61ta\x18\x02 \x01(\x0b\x32\x1d.gridstage.stage.v1.ChainData\"\xc0\x01\n\x0f\x45stimateRequest\x12\r\n\x05model\x18\x01 \x01(\t\x12?\n\x06params\x18\x02 \x03(\x0b\x32/.gridstage.stage.v1.EstimateRequest.ParamsEntry\x12.\n\x06\x63hains\x18\x03 \x03(\x0b\x32\x1e.gridstage.stage.v1.ChainInput\x1a-\n\x0bParamsEntry\x12\x0b\n\x03key\x18\x01 \x01(\t\x12\r\n\x05value\x18\x02 \x01(\x01:\x02\x38\x01\"\x18\n\x06Vector\x12\x0e\n\x06values\x18\x01 \x03(\x01\"\xa3\x02\n\x08\x45stimate\x12\r\n\x05model\x18\x01 \x01(\t\x12\x14\n\x0c\x63hain_hashes\x18\x02 \x03(\t\x12:\n\x07scalars\x18\x03 \x03(\x0b\x32).gridstage.stage.v1.Estimate.ScalarsEntry\x12:\n\x07vectors\x18\x04 \x03(\x0b\x32).gridstage.stage.v1.Estimate.VectorsEntry\x1a.\n\x0cScalarsEntry\x12\x0b\n\x03key\x18\x01 \x01(\t\x12\r\n\x05value\x18\x02 \x01(\x01:\x02\x38\x01\x1aJ\n\x0cVectorsEntry\x12\x0b\n\x03key\x18\x01 \x01(\t\x12)\n\x05value\x18\x02 \x01(\x0b\x32\x1a.gridstage.stage.v1.Vector:\x02\x38\x01\"@\n\rEstimateReply\x12/\n\testimates\x18\x01 \x03(\x0b\x32\x1c.gridstage.stage.v1.Estimate2\xd7\x02\n\x05Stage\x12P\n\x08\x44\x65scribe\x12#.gridstage.stage.v1.DescribeRequest\x1a\x1f.gridstage.stage.v1.Description\x12L\n\x06Health\x12!.gridstage.stage.v1.HealthRequest\x1a\x1f.gridstage.stage.v1.HealthReply\x12Z\n\nDiscretize\x12%.gridstage.stage.v1.DiscretizeRequest\x1a#.gridstage.stage.v1.DiscretizeReply0\x01\x12R\n\x08\x45stimate\x12#.gridstage.stage.v1.EstimateRequest\x1a!.gridstage.stage.v1.EstimateReplyB\x1aZ\x18gridstage/plugin/stagepbb\x06proto3')
+DESCRIPTOR = _descriptor_pool.Default().AddSerializedFile(b'\n\x0bstage.proto\x12\x12gridstage.stage.v1\"1\n\x0f\x44\x65scribeRequest\x12\x1e\n\x16host_protocol_versions\x18\x01 \x03(\r\"m\n\x0b\x44\x65scription\x12\x0c\n\x04name\x18\x01 \x01(\t\x12\x0f\n\x07version\x18\x02 \x01(\t\x12\x19\n\x11protocol_versions\x18\x03 \x03(\r\x12\x14\n\x0c\x63\x61pabilities\x18\x04 \x03(\t\x12\x0e\n\x06models\x18\x05 \x03(\t\"\x0f\n\rHealthRequest\".\n\x0bHealthReply\x12\x0f\n\x07serving\x18\x01 \x01(\x08\x12\x0e\n\x06\x64\x65tail\x18\x02 \x01(\t\"\x80\x01\n\x11\x44iscretizeRequest\x12\x12\n\x08manifest\x18\x01 \x01(\x0cH\x00\x12\x12\n\x08job_spec\x18\x02 \x01(\x0cH\x00\x12\x13\n\x0bsource_name\x18\x03 \x01(\t\x12\x0f\n\x07out_dir\x18\x04 \x01(\t\x12\x14\n\x0cstream_arrow\x18\x05 \x01(\x08\x42\x07\n\x05input\"\xf2\x01\n\x08\x43hainRef\x12\x0c\n\x04path\x18\x01 \x01(\t\x12\x0f\n\x07process\x18\x02 \x01(\t\x12\r\n\x05point\x18\x03 \x01(\r\x12\x12\n\nchain_hash\x18\x04 \x01(\t\x12\x11\n\tspec_hash\x18\x05 \x01(\t\x12\x15\n\rmanifest_hash\x18\x06 \x01(\t\x12\x11\n\tfile_hash\x18\x07 \x01(\t\x12\x38\n\x06params\x18\x08 \x03(\x0b\x32(.gridstage.stage.v1.ChainRef.ParamsEntry\x1a-\n\x0bParamsEntry\x12\x0b\n\x03key\x18\x01 \x01(\t\x12\r\n\x05value\x18\x02 \x01(\x01:\x02\x38\x01\"<\n\nArrowChunk\x12\x12\n\nchain_hash\x18\x01 \x01(\t\x12\x0c\n\x04\x64\x61ta\x18\x02 \x01(\x0c\x12\x0c\n\x04last\x18\x03 \x01(\x08\"y\n\x0f\x44iscretizeReply\x12-\n\x05\x63hain\x18\x01 \x01(\x0b\x32\x1c.gridstage.stage.v1.ChainRefH\x00\x12/\n\x05\x61rrow\x18\x02 \x01(\x0b\x32\x1e.gridstage.stage.v1.ArrowChunkH\x00\x42\x06\n\x04item\"\xae\x01\n\tChainData\x12\x0b\n\x03\x64im\x18\x01 \x01(\r\x12\x0c\n\x04grid\x18\x02 \x03(\x01\x12\x12\n\ntransition\x18\x03 \x03(\x01\x12\x0f\n\x07matched\x18\x04 \x03(\x05\x12\x13\n\x0bhas_initial\x18\x05 \x01(\x08\x12\x0f\n\x07initial\x18\x06 \x03(\x01\x12;\n\rsensitivities\x18\x07 \x03(\x0b\x32$.gridstage.stage.v1.ChainSensitivity\"W\n\x10\x43hainSensitivity\x12\r\n\x05param\x18\x01 \x01(\t\x12\x0c\n\x04grid\x18\x02 \x03(\x01\x12\x12\n\ntransition\x18\x03 \x03(\x01\x12\x12\n\nstationary\x18\x04 \x03(\x01\"d\n\nChainInput\x12)\n\x03ref\x18\x01 \x01(\x0b\x32\x1c.gridstage.stage.v1.ChainRef\x12+\n\x04\x64\x61ta\x18\x02 \x01(\x0b\x32\x1d.gridstage.stage.v1.ChainData\"\xc0\x01\n\x0f\x45stimateRequest\x12\r\n\x05model\x18\x01 \x01(\t\x12?\n\x06params\x18\x02 \x03(\x0b\x32/.gridstage.stage.v1.EstimateRequest.ParamsEntry\x12.\n\x06\x63hains\x18\x03 \x03(\x0b\x32\x1e.gridstage.stage.v1.ChainInput\x1a-\n\x0bParamsEntry\x12\x0b\n\x03key\x18\x01 \x01(\t\x12\r\n\x05value\x18\x02 \x01(\x01:\x02\x38\x01\"\x18\n\x06Vector\x12\x0e\n\x06values\x18\x01 \x03(\x01\"\xa3\x02\n\x08\x45stimate\x12\r\n\x05model\x18\x01 \x01(\t\x12\x14\n\x0c\x63hain_hashes\x18\x02 \x03(\t\x12:\n\x07scalars\x18\x03 \x03(\x0b\x32).gridstage.stage.v1.Estimate.ScalarsEntry\x12:\n\x07vectors\x18\x04 \x03(\x0b\x32).gridstage.stage.v1.Estimate.VectorsEntry\x1a.\n\x0cScalarsEntry\x12\x0b\n\x03key\x18\x01 \x01(\t\x12\r\n\x05value\x18\x02 \x01(\x01:\x02\x38\x01\x1aJ\n\x0cVectorsEntry\x12\x0b\n\x03key\x18\x01 \x01(\t\x12)\n\x05value\x18\x02 \x01(\x0b\x32\x1a.gridstage.stage.v1.Vector:\x02\x38\x01\"@\n\rEstimateReply\x12/\n\testimates\x18\x01 \x03(\x0b\x32\x1c.gridstage.stage.v1.Estimate2\xd7\x02\n\x05Stage\x12P\n\x08\x44\x65scribe\x12#.gridstage.stage.v1.DescribeRequest\x1a\x1f.gridstage.stage.v1.Description\x12L\n\x06Health\x12!.gridstage.stage.v1.HealthRequest\x1a\x1f.gridstage.stage.v1.HealthReply\x12Z\n\nDiscretize\x12%.gridstage.stage.v1.DiscretizeRequest\x1a#.gridstage.stage.v1.DiscretizeReply0\x01\x12R\n\x08\x45stimate\x12#.gridstage.stage.v1.EstimateRequest\x1a!.gridstage.stage.v1.EstimateReplyB\x1aZ\x18gridstage/plugin/stagepbb\x06proto3')
 
 _builder.BuildMessageAndEnumDescriptors(DESCRIPTOR, globals())
 _builder.BuildTopDescriptorsAndMessages(DESCRIPTOR, 'stage_pb2', globals())
@@ -47,24 +47,26 @@ if _descriptor._USE_C_DESCRIPTORS == False:
   _ARROWCHUNK._serialized_end=698
   _DISCRETIZEREPLY._serialized_start=700
   _DISCRETIZEREPLY._serialized_end=821
-  _CHAINDATA._serialized_start=823
-  _CHAINDATA._serialized_end=936
-  _CHAININPUT._serialized_start=938
-  _CHAININPUT._serialized_end=1038
-  _ESTIMATEREQUEST._serialized_start=1041
-  _ESTIMATEREQUEST._serialized_end=1233
+  _CHAINDATA._serialized_start=824
+  _CHAINDATA._serialized_end=998
+  _CHAINSENSITIVITY._serialized_start=1000
+  _CHAINSENSITIVITY._serialized_end=1087
+  _CHAININPUT._serialized_start=1089
+  _CHAININPUT._serialized_end=1189
+  _ESTIMATEREQUEST._serialized_start=1192
+  _ESTIMATEREQUEST._serialized_end=1384
   _ESTIMATEREQUEST_PARAMSENTRY._serialized_start=591
   _ESTIMATEREQUEST_PARAMSENTRY._serialized_end=636
-  _VECTOR._serialized_start=1235
-  _VECTOR._serialized_end=1259
-  _ESTIMATE._serialized_start=1262
-  _ESTIMATE._serialized_end=1553
-  _ESTIMATE_SCALARSENTRY._serialized_start=1431
-  _ESTIMATE_SCALARSENTRY._serialized_end=1477
-  _ESTIMATE_VECTORSENTRY._serialized_start=1479
-  _ESTIMATE_VECTORSENTRY._serialized_end=1553
-  _ESTIMATEREPLY._serialized_start=1555
-  _ESTIMATEREPLY._serialized_end=1619
-  _STAGE._serialized_start=1622
-  _STAGE._serialized_end=1965
+  _VECTOR._serialized_start=1386
+  _VECTOR._serialized_end=1410
+  _ESTIMATE._serialized_start=1413
+  _ESTIMATE._serialized_end=1704
+  _ESTIMATE_SCALARSENTRY._serialized_start=1582
+  _ESTIMATE_SCALARSENTRY._serialized_end=1628
+  _ESTIMATE_VECTORSENTRY._serialized_start=1630
+  _ESTIMATE_VECTORSENTRY._serialized_end=1704
+  _ESTIMATEREPLY._serialized_start=1706
+  _ESTIMATEREPLY._serialized_end=1770
+  _STAGE._serialized_start=1773
+  _STAGE._serialized_end=2116
 # @@protoc_insertion_point(module_scope)
