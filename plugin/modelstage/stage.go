@@ -224,7 +224,9 @@ func solverFor(model string, m map[string]float64) (func(models.Chain, []plugin.
 		if err := b.Validate(); err != nil {
 			return nil, paramError(model, err)
 		}
-		solve = func(c models.Chain, s []plugin.Sensitivity) (plugin.Estimate, error) { return burnsideSlope(b, ar, c, s) }
+		solve = func(c models.Chain, s []plugin.Sensitivity) (plugin.Estimate, error) {
+			return burnsideSlope(b, ar, c, s)
+		}
 	case "brock-mirman":
 		b := models.BrockMirman{Alpha: p.required("alpha"), Beta: p.required("beta"), Capital: p.integer("capital_points"),
 			Low: p.optional("capital_low", 0), High: p.optional("capital_high", 0)}
