@@ -20,8 +20,9 @@ var flagKeys = map[string]string{
 }
 
 // flagsWithoutKey are discretize flags that describe the output, not the
-// process.
-var flagsWithoutKey = map[string]bool{"help": true, "json": true}
+// process. sensitivities adds derivatives to the JSON; they change no
+// number of the chain, so the canonical spec has no key for them.
+var flagsWithoutKey = map[string]bool{"help": true, "json": true, "sensitivities": true}
 
 // schemaDescriptions collects, for every property name anywhere in the
 // JSON Schema, the descriptions given to it (on the property itself or on
