@@ -9,6 +9,15 @@
 // downstream stage reads them by reference and returns estimates that carry
 // the chain hash of every chain they used.
 //
+// Versions: the protocol is version 1 (the handshake and the stagepb
+// package, gridstage.stage.v1); minor versions add fields that older
+// stages ignore. Minor 1 (ProtocolMinor) adds ChainData.sensitivities:
+// a stage that lists CapSensitivities receives every chain inline with its
+// exact derivatives in its process's parameters (AR(1) maxent chains; the
+// host rebuilds each chain from its file's spec, checks it bit for bit and
+// differentiates it). Stages that do not list the capability see nothing
+// new.
+//
 // A Go stage implements Stage and calls Serve from main. A host calls
 // Launch, uses the returned Stage, and closes the Process, which stops the
 // stage and everything it started.
