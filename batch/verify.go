@@ -19,6 +19,10 @@ type VerifyOptions struct {
 	// (by another Parquet or Arrow writer): values, content hashes and the
 	// run record are still checked.
 	ValuesOnly bool
+	// Files passes options to the check of the files themselves
+	// (formats.VerifyWith): skipping their structure check, or visiting
+	// their records as they are read.
+	Files formats.VerifyOptions
 }
 
 // VerifyReport is what Verify checked.
@@ -75,7 +79,7 @@ func Verify(path string, opt VerifyOptions) (*VerifyReport, error) {
 		}
 	}
 	var err error
-	rep.Report, err = formats.Verify(path)
+	rep.Report, err = formats.VerifyWith(path, opt.Files)
 	if err != nil {
 		return rep, err
 	}

@@ -226,3 +226,23 @@ func checkPDF(t *testing.T, path string) {
 		t.Errorf("PDF has %d pages, want at least 4 (summary plus one per charted chain)", n)
 	}
 }
+
+// The page of a 50,000-point run renders in the browser as well: it
+// fetches nothing and shows its maps in the three verdict colours (the
+// map's legend carries the one no chain of that run earns).
+func TestLargeReportRendersInChromium(t *testing.T) {
+	if testing.Short() {
+		t.Skip("browser check skipped in -short mode")
+	}
+	bin := chromium(t)
+	page := filepath.Join(t.TempDir(), "report.html")
+	if err := os.WriteFile(page, largeReport(t), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	shot, pdf, netlog := renderInBrowser(t, bin, page)
+	if got := pageRequests(t, netlog); len(got) != 0 {
+		t.Errorf("the report made network requests: %q", got)
+	}
+	checkScreenshot(t, shot)
+	checkPDF(t, pdf)
+}

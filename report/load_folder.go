@@ -12,6 +12,7 @@ import (
 	"gridstage/batch"
 	"gridstage/batch/runner"
 	"gridstage/formats"
+	"gridstage/internal/plural"
 	"gridstage/manifests"
 	"gridstage/report/figures"
 	"gridstage/solver"
@@ -48,6 +49,31 @@ func loadSets(path string, refs []formats.SetRef) (Run, error) {
 	if len(refs) == 1 && filepath.Ext(path) != "" {
 		verifyPath = refs[0].Dir // a file was named: check its whole set's folder
 	}
+	// One pass reads the numbers and verifies them: the jobs are built from
+	// the records verification reads, and kept only if it succeeds.
+	wanted := map[formats.SetRef]bool{}
+	for _, ref := range refs {
+		wanted[ref] = true
+	}
+	builders := map[formats.SetRef]*jobBuilder{}
+	visit := func(ref formats.SetRef, rec formats.Record) error {
+		if !wanted[ref] {
+			return nil
+		}
+		b := builders[ref]
+		if b == nil {
+			b = &jobBuilder{}
+			builders[ref] = b
+		}
+		if err := b.add(rec); err != nil {
+			return fmt.Errorf("%s: %w", ref.Path(formats.TablePoints), err)
+		}
+		return nil
+	}
+	// Every value is verified; the check that each file's bytes are
+	// gridstage's own encoding of them (a full re-encoding, the costliest
+	// check) is left to `gridstage verify`, and the page says so.
+	files := formats.VerifyOptions{SkipStructure: true, Visit: visit}
 	// With a run record beside the sets, verify against it as
 	// `gridstage verify` does (record hash, jobs against points, byte
 	// digests); without one (sets written by hand), the sets alone.
@@ -56,12 +82,13 @@ func loadSets(path string, refs []formats.SetRef) (Run, error) {
 	against := ""
 	if _, statErr := os.Stat(filepath.Join(refs[0].Dir, batch.RecordFile)); statErr == nil {
 		var full *batch.VerifyReport
-		full, err = batch.Verify(verifyPath, batch.VerifyOptions{})
+		full, err = batch.Verify(verifyPath, batch.VerifyOptions{Files: files})
 		rep = full.Report
-		against = ", files and jobs agree with " + batch.RecordFile + " and have the bytes it records"
+		against = "; files and jobs agree with " + batch.RecordFile + " and have the bytes it records"
 	} else {
-		rep, err = formats.Verify(verifyPath)
+		rep, err = formats.VerifyWith(verifyPath, files)
 	}
+	verified := err == nil
 	switch {
 	case formats.IsNotOutput(err):
 		return Run{}, badInput(path, "%v", err)
@@ -69,7 +96,7 @@ func loadSets(path string, refs []formats.SetRef) (Run, error) {
 		run.Checks = append(run.Checks, Check{Subject: verifyPath, Detail: err.Error()})
 	default:
 		run.Checks = append(run.Checks, Check{Subject: verifyPath, OK: true,
-			Detail: fmt.Sprintf("%d file(s) verified: metadata complete, content and chain hashes recompute, every transition row sums to one%s", len(rep.Files), against)})
+			Detail: fmt.Sprintf("%s verified: metadata complete, content and chain hashes recompute, every transition row sums to one%s (gridstage verify also checks that each file's bytes are gridstage's encoding of its values)", plural.Count(len(rep.Files), "file", "files"), against)})
 	}
 	if rep != nil {
 		for _, w := range rep.Warnings {
@@ -84,70 +111,90 @@ func loadSets(path string, refs []formats.SetRef) (Run, error) {
 	}
 	run.Checks = append(run.Checks, runRecordChecks(&run, refs[0].Dir)...)
 	for _, ref := range refs {
-		set, err := formats.Read(ref, nil)
-		if err != nil {
-			if formats.IsNotOutput(err) {
-				return Run{}, badInput(path, "%v", err)
+		b := builders[ref]
+		if !verified || b == nil {
+			// Verification stopped early: read what the files hold, so the
+			// page can still show it under the warning.
+			set, err := formats.Read(ref, nil)
+			if err != nil {
+				if formats.IsNotOutput(err) {
+					return Run{}, badInput(path, "%v", err)
+				}
+				return Run{}, badInput(path, "cannot be read: %v", err)
 			}
+			b = &jobBuilder{}
+			for _, rec := range set.Records {
+				if err := b.add(rec); err != nil {
+					return Run{}, badInput(ref.Path(formats.TablePoints), "%v", err)
+				}
+			}
+		}
+		r, err := formats.Open(ref, nil)
+		if err != nil {
 			return Run{}, badInput(path, "cannot be read: %v", err)
 		}
-		job, err := jobOf(set)
-		if err != nil {
-			return Run{}, badInput(ref.Path(formats.TablePoints), "%v", err)
-		}
+		h := r.Header
+		r.Close()
+		b.finish()
+		job := b.job
+		job.Process, job.Kind, job.Method, job.Dim = h.Process, h.Kind, h.Method, h.Dim
+		job.Params = append([]string(nil), h.Params...)
+		sort.Strings(job.Params)
 		job.Files = hashes[ref.Process]
 		sort.Slice(job.Files, func(i, j int) bool { return job.Files[i].Name < job.Files[j].Name })
 		run.Jobs = append(run.Jobs, job)
 		if run.Name == "" {
-			run.Name, run.Tool, run.ManifestHash = set.Run, set.Tool, set.ManifestHash
+			run.Name, run.Tool, run.ManifestHash = h.Run, h.Tool, h.ManifestHash
 		}
 	}
 	return run, nil
 }
 
-// jobOf turns a set's records into a job, one Point per sweep point with
-// one Chain per age.
-func jobOf(s *formats.Set) (Job, error) {
-	j := Job{Process: s.Process, Kind: s.Kind, Method: s.Method, Dim: s.Dim, Params: append([]string(nil), s.Params...)}
-	sort.Strings(j.Params)
-	laws := map[string]figures.Law{} // by canonical spec: sweeps repeat few
-	worst := worstPoint{}
-	for _, rec := range s.Records {
-		worst.note(rec)
-		if rec.Chain == nil {
-			return Job{}, fmt.Errorf("point %d age %d has no chain", rec.Point, rec.Age)
-		}
-		if len(j.Points) == 0 || j.Points[len(j.Points)-1].Index != rec.Point {
-			j.Points = append(j.Points, Point{Index: rec.Point, Params: rec.Params, SpecHash: rec.SpecHash,
-				YearsPerPeriod: yearsPerPeriod(rec.Spec)})
-		}
-		pt := &j.Points[len(j.Points)-1]
-		if rec.Chain.Transition == nil {
-			// The last age of a life cycle: a grid no transition leaves.
-			pt.Final, pt.FinalAge = rec.Chain.Grid, rec.Age
-			continue
-		}
-		law, ok := laws[string(rec.Spec)]
-		if !ok {
-			law = lawOf(rec.Spec)
-			laws[string(rec.Spec)] = law
-		}
-		diag := rec.Diag
-		if len(diag.States) != rec.Chain.States() {
-			return Job{}, errors.New("a chain's diagnostics do not cover its states")
-		}
-		law.Mean, law.SD = diag.True.Mean, diag.True.SD
-		// A life-cycle product's diagnostics describe the sum of the
-		// coordinates (manifests: productAges).
-		sumDiag := rec.Chain.Dim > 1 && (rec.Age > 0 || rec.Initial != nil)
-		cs := figures.Case{Chain: rec.Chain, Diag: &diag, BaselineDiag: rec.Baseline, Law: law, SumDiag: sumDiag}
-		pt.Chains = append(pt.Chains, Chain{Case: cs, Age: rec.Age, Initial: rec.Initial})
+// jobBuilder turns a set's records, in order, into a job: one Point per
+// sweep point with one Chain per age.
+type jobBuilder struct {
+	job   Job
+	worst worstPoint
+}
+
+// finish completes the job once every record was added: the grid advice
+// for the point with most states that fell back.
+func (b *jobBuilder) finish() {
+	b.worst.finish()
+	if b.worst.spec != nil {
+		b.job.Advice, b.job.AdvicePoint = adviseSpec(b.worst.spec, b.worst.chains), b.worst.point
 	}
-	worst.finish()
-	if worst.spec != nil {
-		j.Advice, j.AdvicePoint = adviseSpec(worst.spec, worst.chains), worst.point
+}
+
+func (b *jobBuilder) add(rec formats.Record) error {
+	j := &b.job
+	b.worst.note(rec)
+	if rec.Chain == nil {
+		return fmt.Errorf("point %d age %d has no chain", rec.Point, rec.Age)
 	}
-	return j, nil
+	if len(j.Points) == 0 || j.Points[len(j.Points)-1].Index != rec.Point {
+		j.Points = append(j.Points, Point{Index: rec.Point, Params: rec.Params, SpecHash: rec.SpecHash, Spec: rec.Spec,
+			YearsPerPeriod: yearsPerPeriod(rec.Spec)})
+	}
+	pt := &j.Points[len(j.Points)-1]
+	if rec.Chain.Transition == nil {
+		// The last age of a life cycle: a grid no transition leaves.
+		pt.Final, pt.FinalAge = rec.Chain.Grid, rec.Age
+		return nil
+	}
+	diag := rec.Diag
+	if len(diag.States) != rec.Chain.States() {
+		return errors.New("a chain's diagnostics do not cover its states")
+	}
+	// The stored moments only: what else the figures need of the law is
+	// rebuilt from the spec when a chain is drawn (Point.ResolveLaws).
+	law := figures.Law{Mean: diag.True.Mean, SD: diag.True.SD}
+	// A life-cycle product's diagnostics describe the sum of the
+	// coordinates (manifests: productAges).
+	sumDiag := rec.Chain.Dim > 1 && (rec.Age > 0 || rec.Initial != nil)
+	cs := figures.Case{Chain: rec.Chain, Diag: &diag, BaselineDiag: rec.Baseline, Law: law, SumDiag: sumDiag}
+	pt.Chains = append(pt.Chains, Chain{Case: cs, Age: rec.Age, Initial: rec.Initial})
+	return nil
 }
 
 // lawOf rebuilds the process from its canonical spec to learn what the

@@ -45,13 +45,27 @@ type page struct {
 	Generator string
 	Counts    [3]int
 	Glance    []glanceItem
-	// GlanceMore counts sound chains left out of a long at-a-glance list.
-	GlanceMore int
+	// GlanceMore counts the chains left out of a long at-a-glance list,
+	// by verdict level.
+	GlanceMore [3]int
 	FailedChks []Check
 	Jobs       []jobView
 	Omitted    int
 	Thresholds []string
+	// Large is set for runs of more than compactAbove chains: each job
+	// leads with its map, then the worst chains in detail, then a table
+	// of at most tableRows of its chains, worst first.
+	Large bool
 }
+
+// compactAbove is the number of chains beyond which the page switches to
+// its large-run layout, and tableRows the rows of a job's table there
+// (each row is about 700 bytes of HTML: 400 rows keep a job's table near
+// 300 kB whatever the sweep's size).
+const (
+	compactAbove = 200
+	tableRows    = 400
+)
 
 type glanceItem struct {
 	Level  Level
@@ -63,6 +77,14 @@ type jobView struct {
 	Job    Job
 	Rows   []rowView
 	Charts []chainView
+	// Space holds the panels of the map over the swept parameters (none
+	// for a job of one point); SpaceAxes names its axes.
+	Space     []template.HTML
+	SpaceAxes string
+	// RowsLeft counts the job's chains without a row (large runs), by
+	// verdict level; RowsLeftTotal is their sum.
+	RowsLeft      [3]int
+	RowsLeftTotal int
 }
 
 type rowView struct {
@@ -97,17 +119,19 @@ func buildPage(r Run, opt Options) (page, error) {
 	if maxCharts <= 0 {
 		maxCharts = defaultMaxFigureChains
 	}
-	p := page{Run: r, Generator: version.Tool, Thresholds: thresholdText()}
+	p := page{Run: r, Generator: version.Tool, Thresholds: thresholdText(), Large: r.Chains() > compactAbove}
 	for _, c := range r.Checks {
 		if !c.OK {
 			p.FailedChks = append(p.FailedChks, c)
 		}
 	}
-	// Grade every chain, then choose which get figures: worst first, then
-	// in reading order.
+	// Grade every chain, then choose which get figures: the most severe
+	// first (verdict, then worst error of a requested moment, then states
+	// that fell back), ties in reading order.
 	type ref struct{ job, point, chain int }
 	var all []ref
 	verdicts := map[ref]Verdict{}
+	worst := map[ref]float64{}
 	for ji, j := range r.Jobs {
 		for pi, pt := range j.Points {
 			for ci, c := range pt.Chains {
@@ -121,11 +145,22 @@ func buildPage(r Run, opt Options) (page, error) {
 				}
 				v.advise(c.Case, j)
 				verdicts[k] = v
+				worst[k] = requestedWorst(c.Case)
 			}
 		}
 	}
+	chainOf := func(k ref) Chain { return r.Jobs[k.job].Points[k.point].Chains[k.chain] }
 	ranked := append([]ref(nil), all...)
-	sort.SliceStable(ranked, func(a, b int) bool { return verdicts[ranked[a]].Level > verdicts[ranked[b]].Level })
+	sort.SliceStable(ranked, func(a, b int) bool {
+		ka, kb := ranked[a], ranked[b]
+		if la, lb := verdicts[ka].Level, verdicts[kb].Level; la != lb {
+			return la > lb
+		}
+		if wa, wb := worst[ka], worst[kb]; wa != wb {
+			return wa > wb || math.IsNaN(wa)
+		}
+		return chainOf(ka).Chain.Fallbacks() > chainOf(kb).Chain.Fallbacks()
+	})
 	chosen := map[ref]bool{}
 	for _, k := range ranked {
 		if len(chosen) == maxCharts {
@@ -134,11 +169,36 @@ func buildPage(r Run, opt Options) (page, error) {
 		chosen[k] = true
 	}
 	p.Omitted = len(all) - len(chosen)
+	// In a large run each job's table lists its most severe chains only.
+	listed := map[ref]bool{}
+	perJob := map[int]int{}
+	for _, k := range ranked {
+		if !p.Large || perJob[k.job] < tableRows {
+			listed[k] = true
+			perJob[k.job]++
+		}
+	}
 
 	for ji, j := range r.Jobs {
 		jv := jobView{Job: j}
+		stats := make([]pointStat, len(j.Points))
+		for pi, pt := range j.Points {
+			st := &stats[pi]
+			st.params = pt.Params
+			for ci, c := range pt.Chains {
+				k := ref{ji, pi, ci}
+				st.level = max(st.level, verdicts[k].Level)
+				st.states += c.Chain.States()
+				st.fallbacks += c.Chain.Fallbacks()
+				st.worst = math.Max(st.worst, worst[k])
+			}
+		}
+		if m := newSpaceMap(j.Params, stats); m != nil {
+			jv.Space, jv.SpaceAxes = m.panels(), m.axesText()
+		}
 		for pi, pt := range j.Points {
 			pointCharted := false
+			resolved := false
 			for ci, c := range pt.Chains {
 				k := ref{ji, pi, ci}
 				v := verdicts[k]
@@ -146,9 +206,19 @@ func buildPage(r Run, opt Options) (page, error) {
 				anchor := fmt.Sprintf("c-%d-%d-%d", ji, pt.Index, c.Age)
 				title := chainTitle(j, pt, c)
 				p.Glance = append(p.Glance, glanceItem{Level: v.Level, Label: title, Anchor: anchor})
-				jv.Rows = append(jv.Rows, summaryRow(pt, c, v, anchor, chosen[k]))
+				if listed[k] {
+					jv.Rows = append(jv.Rows, summaryRow(pt, c, v, anchor, chosen[k]))
+				} else {
+					jv.RowsLeft[v.Level]++
+					jv.RowsLeftTotal++
+				}
 				if !chosen[k] {
 					continue
+				}
+				if !resolved {
+					pt.ResolveLaws()
+					resolved = true
+					c = pt.Chains[ci]
 				}
 				cv := chainView{Anchor: anchor, Title: title, Verdict: v}
 				c.Label = title
@@ -181,10 +251,45 @@ func buildPage(r Run, opt Options) (page, error) {
 				jv.Charts = append(jv.Charts, cv)
 			}
 		}
+		if p.Large {
+			// Worst first, as the chains were ranked.
+			order := map[string]int{}
+			n := 0
+			for _, k := range ranked {
+				if k.job == ji && listed[k] {
+					order[fmt.Sprintf("c-%d-%d-%d", ji, r.Jobs[ji].Points[k.point].Index, chainOf(k).Age)] = n
+					n++
+				}
+			}
+			sort.SliceStable(jv.Rows, func(a, b int) bool { return order[jv.Rows[a].Anchor] < order[jv.Rows[b].Anchor] })
+		}
 		p.Jobs = append(p.Jobs, jv)
 	}
 	p.Glance, p.GlanceMore = trimGlance(p.Glance)
 	return p, nil
+}
+
+// requestedWorst is the largest standardized error, over the chain's
+// states, of the conditional moments it was asked to match (at least mean
+// and variance, at most the four the diagnostics keep): zero up to
+// rounding where every state matches them, the size of the miss where
+// states fell back.
+func requestedWorst(c figures.Case) float64 {
+	if c.Diag == nil {
+		return math.NaN()
+	}
+	k := min(max(c.Chain.Moments, 2), 4)
+	var w float64
+	for _, s := range c.Diag.States {
+		errs := [4]float64{s.RelErr.Mean, s.RelErr.Var, s.RelErr.Skew, s.RelErr.Kurt}
+		for _, e := range errs[:k] {
+			if math.IsNaN(e) {
+				return math.NaN()
+			}
+			w = math.Max(w, math.Abs(e))
+		}
+	}
+	return w
 }
 
 // glanceLimit is the longest at-a-glance list shown in full.
@@ -192,9 +297,10 @@ const glanceLimit = 60
 
 // trimGlance keeps a long list readable: every chain that is not sound
 // (up to the limit), then sound ones while room remains, in reading order.
-func trimGlance(items []glanceItem) ([]glanceItem, int) {
+func trimGlance(items []glanceItem) ([]glanceItem, [3]int) {
+	var left [3]int
 	if len(items) <= glanceLimit {
-		return items, 0
+		return items, left
 	}
 	keep := make([]bool, len(items))
 	n := 0
@@ -210,9 +316,11 @@ func trimGlance(items []glanceItem) ([]glanceItem, int) {
 	for i, it := range items {
 		if keep[i] {
 			out = append(out, it)
+		} else {
+			left[it.Level]++
 		}
 	}
-	return out, len(items) - len(out)
+	return out, left
 }
 
 func chainTitle(j Job, pt Point, c Chain) string {

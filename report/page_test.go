@@ -88,7 +88,7 @@ func TestFigureCapKeepsTheWorstChains(t *testing.T) {
 	if !strings.Contains(html, `<article class="chain" id="c-0-2-0">`) {
 		t.Error("the cap did not keep the unfit chain")
 	}
-	if !strings.Contains(html, "Figures for 5 more chain(s)") {
+	if !strings.Contains(html, "Figures for 5 more chains are not shown") {
 		t.Error("the page does not say how many chains lack figures")
 	}
 }
@@ -97,7 +97,7 @@ func TestFailedChecksRaiseAWarning(t *testing.T) {
 	r := exampleRun(t)
 	r.Checks = append(r.Checks, Check{Subject: "earnings.transitions.parquet", Detail: "content hash differs from the recorded one"})
 	html := render(t, r, Options{})
-	if !strings.Contains(html, "1 check(s) on the files failed") || !strings.Contains(html, "content hash differs") {
+	if !strings.Contains(html, "1 check on the files failed") || !strings.Contains(html, "content hash differs") {
 		t.Error("a failed file check is not shown as a warning")
 	}
 }
@@ -112,8 +112,8 @@ func TestLongGlanceListKeepsEveryTroubledChain(t *testing.T) {
 		items = append(items, glanceItem{Level: l, Anchor: fmt.Sprint(i)})
 	}
 	out, more := trimGlance(items)
-	if len(out) != glanceLimit || more != 100-glanceLimit {
-		t.Fatalf("kept %d, %d more; want %d and %d", len(out), more, glanceLimit, 100-glanceLimit)
+	if len(out) != glanceLimit || more != [3]int{100 - glanceLimit, 0, 0} {
+		t.Fatalf("kept %d, %v more; want %d and %d sound", len(out), more, glanceLimit, 100-glanceLimit)
 	}
 	unfit := 0
 	for k, it := range out {

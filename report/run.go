@@ -58,6 +58,9 @@ type Point struct {
 	// SpecHash identifies the canonical job spec; ChainHash the chain's
 	// numbers (all ages).
 	SpecHash, ChainHash string
+	// Spec is the canonical job spec when the point was read from files;
+	// ResolveLaws rebuilds the process from it.
+	Spec []byte
 	// Chains holds one chain per age, in age order; time-invariant
 	// processes have one, at age 0.
 	Chains []Chain
@@ -134,6 +137,34 @@ func (r Run) Chains() int {
 		for _, p := range j.Points {
 			n += len(p.Chains)
 		}
+	}
+	return n
+}
+
+// ResolveLaws completes what the figures need of the true law of each of
+// the point's chains (whether it is exactly normal, a vector process's
+// stationary covariance) by rebuilding the process from Spec. Loading
+// keeps only the stored moments, because rebuilding thousands of
+// processes is slow and only drawn chains need it. Without a Spec it does
+// nothing. The chains are shared with every copy of the point.
+func (p Point) ResolveLaws() {
+	if p.Spec == nil {
+		return
+	}
+	l := lawOf(p.Spec)
+	for i := range p.Chains {
+		c := &p.Chains[i]
+		l.Mean, l.SD = c.Law.Mean, c.Law.SD
+		c.Law = l
+	}
+}
+
+// Points counts the sweep points of every job: the jobs of `gridstage
+// run`, one per point.
+func (r Run) Points() int {
+	var n int
+	for _, j := range r.Jobs {
+		n += len(j.Points)
 	}
 	return n
 }

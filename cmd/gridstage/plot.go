@@ -124,6 +124,7 @@ func plotPoint(cmd *cobra.Command, out string, f figures.Format, j report.Job, p
 		name string
 		fig  figures.Figure
 	}
+	pt.ResolveLaws()
 	if pt.LifeCycle() {
 		lc, err := figures.ForLifeCycle(pt.AgeFigures(j.Process + ", " + pt.Describe()))
 		if err != nil {
