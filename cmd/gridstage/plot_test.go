@@ -137,7 +137,7 @@ func TestReportAndPlotAfterRun(t *testing.T) {
 		t.Fatal(err)
 	}
 	for _, want := range []string{"kestrel-bay-earnings", "1 sound", "1 use with care", "1 do not use",
-		"kestrel-bay.yaml", "file(s) verified", "earnings.transitions.parquet"} {
+		"kestrel-bay.yaml", "files verified", "earnings.transitions.parquet"} {
 		if !bytes.Contains(html, []byte(want)) {
 			t.Errorf("report lacks %q", want)
 		}
