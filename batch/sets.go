@@ -43,13 +43,16 @@ func (s *setWriter) append(job manifests.Job, sol manifests.Solution) (string, e
 		s.open[job.Process] = w
 		s.order = append(s.order, job.Process)
 	}
-	recs := records(job, sol)
-	for _, r := range recs {
+	for _, r := range records(job, sol) {
 		if err := w.Append(r); err != nil {
 			return "", fmt.Errorf("batch: %s point %d: %w", job.Process, job.Point, err)
 		}
 	}
-	return formats.ChainHash(recs), nil // as ChainHash(job, sol)
+	hash, err := w.EndPoint() // as ChainHash(job, sol)
+	if err != nil {
+		return "", fmt.Errorf("batch: %s point %d: %w", job.Process, job.Point, err)
+	}
+	return hash, nil
 }
 
 // ChainHash returns the chain hash of a solved job as a run records it in

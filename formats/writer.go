@@ -75,6 +75,7 @@ type Writer struct {
 
 	cur      *pointRow
 	curHash  *chainHasher
+	curEnded bool // the point in progress was finished by EndPoint
 	lastAge  int
 	terminal bool // the last record appended had no transition
 
@@ -224,6 +225,8 @@ func (w *Writer) check(r *Record) error {
 		switch {
 		case r.Point < w.cur.point:
 			return bad("points must be appended in increasing order (previous point %d)", w.cur.point)
+		case r.Point == w.cur.point && w.curEnded:
+			return bad("the point was already finished (EndPoint)")
 		case r.Point == w.cur.point && w.terminal:
 			return bad("the point's terminal age %d (a grid without transition) must be its last", w.lastAge)
 		case r.Point == w.cur.point && r.Age <= w.lastAge:
@@ -283,7 +286,7 @@ func (w *Writer) Append(r Record) error {
 			params[k] = r.Params[p]
 		}
 		w.cur = &pointRow{point: r.Point, specHash: r.SpecHash, spec: append([]byte(nil), r.Spec...), params: params}
-		w.curHash = newChainHasher()
+		w.curHash, w.curEnded = newChainHasher(), false
 	}
 	w.cur.ages++
 	w.lastAge, w.terminal = r.Age, r.Chain.Transition == nil
@@ -315,11 +318,32 @@ func (w *Writer) fail(err error) error {
 	return err
 }
 
-// endPoint writes the points row of the point in progress.
-func (w *Writer) endPoint() error {
+// EndPoint finishes the point of the records appended last and returns
+// its chain hash (docs/HASHES.md): no more ages of it may follow. Calling
+// it is optional — the next point or Close finishes a point — and spares a
+// caller that needs the hash at once from computing it a second time.
+func (w *Writer) EndPoint() (string, error) {
+	if w.closed {
+		return "", errors.New("formats: EndPoint after Close or Abort")
+	}
+	if w.err != nil {
+		return "", w.err
+	}
 	if w.cur == nil {
+		return "", errors.New("formats: EndPoint before any record")
+	}
+	if err := w.endPoint(); err != nil {
+		return "", w.fail(err)
+	}
+	return w.cur.chainHash, nil
+}
+
+// endPoint writes the points row of the point in progress, once.
+func (w *Writer) endPoint() error {
+	if w.cur == nil || w.curEnded {
 		return nil
 	}
+	w.curEnded = true
 	w.cur.chainHash = w.curHash.sum()
 	w.specs.add(w.cur.point, w.cur.specHash)
 	w.done = append(w.done, PointHash{Point: w.cur.point, SpecHash: w.cur.specHash, ChainHash: w.cur.chainHash})
@@ -351,15 +375,12 @@ func (w *Writer) Close() (Result, error) {
 }
 
 func (w *Writer) close() (Result, error) {
-	var single *pointRow
-	if len(w.done) == 0 && w.cur != nil {
-		single = w.cur
-	}
 	if err := w.endPoint(); err != nil {
 		return Result{}, err
 	}
-	if len(w.done) != 1 {
-		single = nil
+	var single *pointRow // the only point, the last one appended
+	if len(w.done) == 1 {
+		single = w.cur
 	}
 	res := Result{Points: w.done, SpecDigest: w.specs.sum()}
 	base := baseMeta(w.h, len(w.done), res.SpecDigest)
@@ -368,9 +389,16 @@ func (w *Writer) close() (Result, error) {
 		base[KeySpec] = string(single.spec)
 	}
 	hashes := map[string]string{}
+	// Hand every table's last batch over first, so that their encoders
+	// finish side by side.
+	for _, name := range Tables {
+		if err := w.tables[name].flush(); err != nil {
+			return Result{}, err
+		}
+	}
 	for i, name := range Tables {
 		t := w.tables[name]
-		if err := t.flush(); err != nil {
+		if err := t.finish(); err != nil {
 			return Result{}, err
 		}
 		meta := make(map[string]string, len(base)+4)
@@ -425,10 +453,10 @@ func (w *Writer) Abort() {
 		return
 	}
 	w.closed = true
+	w.release() // stops the encoders before their files go
 	for _, s := range w.sinks {
 		s.discard()
 	}
-	w.release()
 }
 
 // Write writes a whole Set in memory to folder dir (a convenience over

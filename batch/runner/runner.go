@@ -14,7 +14,7 @@ import (
 // window, and stops at the first failure.
 type Options struct {
 	// Workers is the number of jobs computed at once; 0 means
-	// runtime.NumCPU().
+	// runtime.GOMAXPROCS(0), the cores this process may use.
 	Workers int
 	// Window bounds the jobs in flight or waiting for delivery; memory is
 	// proportional to it. 0 means max(8×Workers, 16); a value below Workers
@@ -29,7 +29,7 @@ func (o Options) workers() int {
 	if o.Workers > 0 {
 		return o.Workers
 	}
-	return runtime.NumCPU()
+	return runtime.GOMAXPROCS(0)
 }
 
 func (o Options) window(workers int) int {

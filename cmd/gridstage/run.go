@@ -9,6 +9,7 @@ import (
 	"os"
 	"os/signal"
 	"path/filepath"
+	"runtime"
 	"strings"
 	"syscall"
 	"time"
@@ -70,6 +71,13 @@ On a Slurm array job the share of jobs is taken from the array variables;
 			if workers < 0 {
 				return badInput("--workers %d is out of range: want 0 (every core) or more", workers)
 			}
+			if workers > 0 {
+				// K workers use K cores in all: K jobs solved at once, and
+				// the writing, hashing and compression of the output
+				// (which run beside the solves) share the same cores, as
+				// on a cluster node granted K cores.
+				runtime.GOMAXPROCS(workers)
+			}
 			if opt.Shard, err = shard.Resolve(shardFlag, os.Getenv); err != nil {
 				return badInput("--shard: %v", err)
 			}
@@ -117,7 +125,7 @@ On a Slurm array job the share of jobs is taken from the array variables;
 	fs := cmd.Flags()
 	fs.StringVar(&out, "out", "", "output folder (default: the manifest's output folder)")
 	fs.StringVar(&format, "format", "", "output format: parquet or arrow (default: the manifest's, else parquet)")
-	fs.IntVar(&workers, "workers", 0, "jobs solved at once (default: every core)")
+	fs.IntVar(&workers, "workers", 0, "cores to use: jobs solved at once, with the output written on the same cores (default: every core)")
 	fs.StringVar(&cacheDir, "cache", "", "cache folder, or off (default: $GRIDSTAGE_CACHE, else the user cache folder)")
 	fs.StringVar(&shardFlag, "shard", "", "run share I of N of the jobs, as I/N (default: from Slurm array variables, else all)")
 	fs.StringVar(&logFormat, "log-format", "text", "log format: text or json")

@@ -4,6 +4,7 @@ import (
 	"context"
 	"fmt"
 	"path/filepath"
+	"runtime"
 	"testing"
 
 	"gridstage/batch"
@@ -81,8 +82,16 @@ const (
 )
 
 // benchRun times gridstage run's engine end to end: manifest jobs through
-// the worker pool (and cache) into Parquet files.
+// the worker pool (and cache) into Parquet files, on as many cores as
+// workers, as gridstage run --workers does (GOMAXPROCS = workers: the
+// output's encoders share those cores with the solves).
 func benchRun(b *testing.B, s Sweep, workers int, mode cacheMode) {
+	defer runtime.GOMAXPROCS(runtime.GOMAXPROCS(workers))
+	benchRunOn(b, s, workers, mode)
+}
+
+// benchRunOn is benchRun on whatever cores GOMAXPROCS allows.
+func benchRunOn(b *testing.B, s Sweep, workers int, mode cacheMode) {
 	m := load(b, s)
 	root := b.TempDir()
 	var c *cache.Cache
@@ -123,6 +132,14 @@ func BenchmarkPool10kWorkers2(b *testing.B) { benchPool(b, sweep10k, 2) }
 func BenchmarkRun10kWorkers1(b *testing.B)  { benchRun(b, sweep10k, 1, noCache) }
 func BenchmarkRun10kWorkers2(b *testing.B)  { benchRun(b, sweep10k, 2, noCache) }
 func BenchmarkRun10kColdCache(b *testing.B) { benchRun(b, sweep10k, 2, coldCache) }
+
+// BenchmarkRun10kWorkers1Cores2 solves on one goroutine while the output is
+// written on both cores: what --workers 1 meant before workers counted
+// cores.
+func BenchmarkRun10kWorkers1Cores2(b *testing.B) {
+	defer runtime.GOMAXPROCS(runtime.GOMAXPROCS(2))
+	benchRunOn(b, sweep10k, 1, noCache)
+}
 func BenchmarkRun10kWarmCache(b *testing.B) { benchRun(b, sweep10k, 2, warmCache) }
 
 // BenchmarkRun10kRerun times what a user sees re-running the same manifest
