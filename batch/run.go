@@ -200,6 +200,9 @@ func Run(ctx context.Context, m *manifests.Manifest, opt Options) (*Result, erro
 	}
 
 	sets := newSetWriter(m, dir, format)
+	if !sh.Whole() {
+		sets.rows = ShardBatchRows
+	}
 	defer sets.abort()
 	worst := map[string]*worstJob{}
 	delivered := 0
@@ -277,6 +280,12 @@ func Run(ctx context.Context, m *manifests.Manifest, opt Options) (*Result, erro
 	}
 	return res, runErr
 }
+
+// ShardBatchRows is the row-group size of a shard's files. A merge reads
+// many shards at once, each through the pages of its current row group, so
+// shards are written in smaller row groups than a whole run's files (whose
+// bytes a merge reproduces). Content hashes do not depend on it.
+const ShardBatchRows = 8192
 
 func paramMap(ps []manifests.Param) map[string]float64 {
 	if len(ps) == 0 {

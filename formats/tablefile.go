@@ -13,6 +13,7 @@ import (
 	"github.com/apache/arrow-go/v18/arrow/array"
 	"github.com/apache/arrow-go/v18/arrow/ipc"
 	"github.com/apache/arrow-go/v18/arrow/memory"
+	"github.com/apache/arrow-go/v18/parquet"
 	"github.com/apache/arrow-go/v18/parquet/file"
 	"github.com/apache/arrow-go/v18/parquet/pqarrow"
 
@@ -95,6 +96,11 @@ const (
 	readBatchRows = 1 << 16
 	maxBatchRows  = 1 << 20
 )
+
+// readBufferBytes is the buffer through which Parquet pages are read, one
+// page at a time, instead of reading each column chunk whole (a merge
+// keeps several sets open at once).
+const readBufferBytes = 1 << 16
 
 // openTable opens a table file of either format and checks its metadata
 // and columns. A file not named like gridstage output that cannot be read
@@ -215,7 +221,10 @@ func (t *tableFile) open(mem memory.Allocator) (map[string]string, error) {
 		}
 		return raw, nil
 	}
-	pr, err := file.NewParquetReader(t.f)
+	props := parquet.NewReaderProperties(mem)
+	props.BufferedStreamEnabled = true
+	props.BufferSize = readBufferBytes
+	pr, err := file.NewParquetReader(t.f, file.WithReadProps(props))
 	if err != nil {
 		return nil, err
 	}

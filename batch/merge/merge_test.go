@@ -260,3 +260,89 @@ func TestMergeStopsOnDamagedShard(t *testing.T) {
 		t.Fatal("a set of the damaged process appeared in the output")
 	}
 }
+
+// TestMergeThroughIntermediateSets: with more shards than FanIn the merge
+// goes through levels of intermediate sets; the result is still the single
+// run's (content hashes and chain hashes, exact), and no intermediate
+// folder is left in the output.
+func TestMergeThroughIntermediateSets(t *testing.T) {
+	defer func(f int) { FanIn = f }(FanIn)
+	FanIn = 2 // 5 shards: 3 sets after one pass, 2 after the next, then the output
+	root := t.TempDir()
+	single := writeRun(t, filepath.Join(root, "single"), shard.All, formats.Parquet)
+	dirs := shardDirs(t, root, 5, formats.Parquet)
+	out := filepath.Join(root, "merged")
+	res, err := Merge(dirs, out)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, got := range res.Sets {
+		process := strings.SplitN(filepath.Base(got.Files[0].Path), ".", 2)[0]
+		want := single[process]
+		if fmt.Sprint(got.Points) != fmt.Sprint(want.Points) || got.SpecDigest != want.SpecDigest {
+			t.Errorf("%s: point hashes or spec digest differ from the single run", process)
+		}
+		for k, f := range got.Files {
+			if f.ContentHash != want.Files[k].ContentHash {
+				t.Errorf("%s %s: content hash %s, single run %s", process, f.Table, f.ContentHash, want.Files[k].ContentHash)
+			}
+			if b := filepath.Join(root, "single", filepath.Base(f.Path)); !bytes.Equal(readBytes(t, f.Path), readBytes(t, b)) {
+				t.Errorf("%s: bytes differ from the single run's", filepath.Base(f.Path))
+			}
+		}
+	}
+	entries, err := os.ReadDir(out)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, e := range entries {
+		if e.IsDir() {
+			t.Errorf("folder %s left in the output", e.Name())
+		}
+	}
+	rec, err := batch.ReadRecord(out)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for i, j := range rec.Jobs {
+		if j.Index != i {
+			t.Fatalf("merged record lists job %d at position %d", j.Index, i)
+		}
+	}
+	if len(rec.Jobs) != len(runJobs()) {
+		t.Fatalf("merged record lists %d jobs, want %d", len(rec.Jobs), len(runJobs()))
+	}
+}
+
+// TestMergeRejectsRecordWithWrongJobs: a shard's run record that lists a
+// job of another shard is refused before anything is written.
+func TestMergeRejectsRecordWithWrongJobs(t *testing.T) {
+	root := t.TempDir()
+	dirs := shardDirs(t, root, 3, formats.Parquet)
+	rec, err := batch.ReadRecord(dirs[1])
+	if err != nil {
+		t.Fatal(err)
+	}
+	rec.Jobs[0].Index = 0 // shard 2/3 holds jobs 1, 4, 7
+	if err := batch.WriteRecord(dirs[1], rec); err != nil {
+		t.Fatal(err)
+	}
+	out := filepath.Join(root, "merged")
+	_, err = Merge(dirs, out)
+	var ie *InputError
+	if !errors.As(err, &ie) || !strings.Contains(err.Error(), "do not list job 0 exactly once") {
+		t.Fatalf("error %v, want one saying job 0 is not listed exactly once", err)
+	}
+	if _, statErr := os.Stat(out); statErr == nil {
+		t.Error("output folder created despite the error")
+	}
+}
+
+func readBytes(t *testing.T, path string) []byte {
+	t.Helper()
+	b, err := os.ReadFile(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return b
+}
