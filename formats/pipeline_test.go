@@ -85,6 +85,7 @@ func (s *failingSink) write(arrow.RecordBatch) error {
 func (s *failingSink) finish(map[string]string) error { return nil }
 func (s *failingSink) commit() error                  { return nil }
 func (s *failingSink) discard()                       {}
+func (s *failingSink) digest() string                 { return "" }
 
 // TestEncoderError: a write that fails on a table's encoder goroutine is
 // reported by a later flush or by finish, and the batches after it are
