@@ -52,11 +52,15 @@ func TestCacheNeverServesOtherNumerics(t *testing.T) {
 	}
 	for _, job := range m.Jobs {
 		bad := poison(t, job)
+		spec, err := job.Spec()
+		if err != nil {
+			t.Fatal(err)
+		}
 		for _, n := range others {
 			if n == version.Numeric {
 				continue
 			}
-			if err := c.Put(version.SpecHash(n, job.Canonical), &bad); err != nil {
+			if err := c.Put(version.SpecHash(n, spec), &bad); err != nil {
 				t.Fatal(err)
 			}
 		}

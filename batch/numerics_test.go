@@ -17,7 +17,6 @@ import (
 	"strings"
 	"testing"
 
-	"gridstage/formats"
 	"gridstage/internal/version"
 	"gridstage/manifests"
 )
@@ -74,7 +73,7 @@ func TestNumericsGolden(t *testing.T) {
 		}
 		flat := map[string]any{}
 		flatten(flat, "", reflect.ValueOf(sol))
-		now.entries[job.Process] = goldenEntry{chain: formats.ChainHash(records(job, sol)), digest: digest(flat)}
+		now.entries[job.Process] = goldenEntry{chain: ChainHash(job, sol), digest: digest(flat)}
 		now.order = append(now.order, job.Process)
 		values[job.Process] = flat
 	}

@@ -92,6 +92,7 @@ type ProcessAdvice struct {
 // solved is a job's result as it travels from a worker to the writer.
 type solved struct {
 	sol    manifests.Solution
+	spec   []byte // the job's canonical spec, rebuilt on the worker
 	cached bool
 }
 
@@ -172,6 +173,10 @@ func Run(ctx context.Context, m *manifests.Manifest, opt Options) (*Result, erro
 			return solved{}, err
 		}
 		job := m.Jobs[jobs[k]]
+		spec, err := job.Spec()
+		if err != nil {
+			return solved{}, err
+		}
 		if opt.Cache != nil {
 			var sol manifests.Solution
 			hit, err := opt.Cache.Get(job.SpecHash, &sol)
@@ -180,7 +185,7 @@ func Run(ctx context.Context, m *manifests.Manifest, opt Options) (*Result, erro
 			}
 			if hit {
 				cachedCount.Add(1)
-				return solved{sol: sol, cached: true}, nil
+				return solved{sol: sol, spec: spec, cached: true}, nil
 			}
 		}
 		prob, err := job.Build()
@@ -196,7 +201,7 @@ func Run(ctx context.Context, m *manifests.Manifest, opt Options) (*Result, erro
 				log.Warn("could not store in cache", "process", job.Process, "point", job.Point, "error", err)
 			}
 		}
-		return solved{sol: sol}, nil
+		return solved{sol: sol, spec: spec}, nil
 	}
 
 	sets := newSetWriter(m, dir, format)
@@ -233,7 +238,7 @@ func Run(ctx context.Context, m *manifests.Manifest, opt Options) (*Result, erro
 			log.Debug("states fell back to fewer moments", "process", job.Process, "point", job.Point,
 				"states", rec.Fallbacks, "of", v.sol.States())
 		}
-		hash, err := sets.append(job, v.sol)
+		hash, err := sets.append(job, v.sol, v.spec)
 		if err != nil {
 			return err
 		}

@@ -28,8 +28,9 @@ func newSetWriter(m *manifests.Manifest, dir string, f formats.Format) *setWrite
 	return &setWriter{m: m, dir: dir, format: f, open: map[string]*formats.Writer{}, failed: map[string]bool{}}
 }
 
-// append writes one solved job and returns its chain hash.
-func (s *setWriter) append(job manifests.Job, sol manifests.Solution) (string, error) {
+// append writes one solved job, whose canonical spec is spec, and returns
+// its chain hash.
+func (s *setWriter) append(job manifests.Job, sol manifests.Solution, spec []byte) (string, error) {
 	if s.failed[job.Process] {
 		return "", nil
 	}
@@ -44,7 +45,7 @@ func (s *setWriter) append(job manifests.Job, sol manifests.Solution) (string, e
 		s.open[job.Process] = w
 		s.order = append(s.order, job.Process)
 	}
-	for _, r := range records(job, sol) {
+	for _, r := range records(job, sol, spec) {
 		if err := w.Append(r); err != nil {
 			return "", fmt.Errorf("batch: %s point %d: %w", job.Process, job.Point, err)
 		}
@@ -59,14 +60,14 @@ func (s *setWriter) append(job manifests.Job, sol manifests.Solution) (string, e
 // ChainHash returns the chain hash of a solved job as a run records it in
 // run.json and the points table (docs/HASHES.md, "Chain hash").
 func ChainHash(job manifests.Job, sol manifests.Solution) string {
-	return formats.ChainHash(records(job, sol))
+	return formats.ChainHash(records(job, sol, nil)) // the spec is not hashed
 }
 
 // records turns a solved job into the records of its output set: one
 // record for a time-invariant chain; for a life cycle one per age, the
 // initial distribution on age 0 and the terminal age (its grid only) last.
-func records(job manifests.Job, sol manifests.Solution) []formats.Record {
-	base := formats.Record{Point: job.Point, Params: paramMap(job.Params), SpecHash: job.SpecHash, Spec: job.Canonical}
+func records(job manifests.Job, sol manifests.Solution, spec []byte) []formats.Record {
+	base := formats.Record{Point: job.Point, Params: paramMap(job.Params), SpecHash: job.SpecHash, Spec: spec}
 	if sol.Ages == nil {
 		r := base
 		r.Chain, r.Diag, r.Baseline = sol.Chain, sol.Diagnostics, sol.BaselineDiagnostics

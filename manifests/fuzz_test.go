@@ -42,12 +42,12 @@ func FuzzParse(f *testing.F) {
 			return // enough checked; keep each input fast
 		}
 		for _, j := range m.Jobs {
-			back, err := ParseSpec(j.Canonical)
+			back, err := ParseSpec(specOf(t, j))
 			if err != nil {
-				t.Fatalf("ParseSpec(%s): %v", j.Canonical, err)
+				t.Fatalf("ParseSpec(%s): %v", specOf(t, j), err)
 			}
 			if back.SpecHash != j.SpecHash {
-				t.Fatalf("spec %s does not round-trip: %s", j.Canonical, back.Canonical)
+				t.Fatalf("spec %s does not round-trip: %s", specOf(t, j), specOf(t, back))
 			}
 			if _, err := j.Build(); err != nil {
 				t.Fatal(err)

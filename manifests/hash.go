@@ -1,6 +1,7 @@
 package manifests
 
 import (
+	"bytes"
 	"crypto/sha256"
 	"encoding/hex"
 
@@ -17,13 +18,31 @@ func SpecHash(canonical []byte) string {
 
 // manifestHash is the hex SHA-256 of the manifest's canonical form: the run
 // name, the output format and, per job in order, its process, sweep point
-// and spec hash (docs/HASHES.md).
-func manifestHash(run, format string, jobs []Job) (string, []byte) {
-	list := make([]any, len(jobs))
-	for i, j := range jobs {
-		list[i] = object{"process": j.Process, "point": j.Point, "spec_hash": j.SpecHash}
+// and spec hash (docs/HASHES.md). The form is hashed as it is encoded, job
+// by job, never held whole: its keys in canonical (sorted) order are
+// format, jobs, run.
+func manifestHash(run, format string, jobs []Job) string {
+	h := sha256.New()
+	var b bytes.Buffer
+	flush := func() {
+		h.Write(b.Bytes())
+		b.Reset()
 	}
-	canon := encodeCanonical(object{"run": run, "format": format, "jobs": list})
-	sum := sha256.Sum256(canon)
-	return hex.EncodeToString(sum[:]), canon
+	b.WriteString(`{"format":`)
+	writeCanonical(&b, format)
+	b.WriteString(`,"jobs":[`)
+	for i, j := range jobs {
+		if i > 0 {
+			b.WriteByte(',')
+		}
+		writeCanonical(&b, object{"process": j.Process, "point": j.Point, "spec_hash": j.SpecHash})
+		if b.Len() >= 1<<16 {
+			flush()
+		}
+	}
+	b.WriteString(`],"run":`)
+	writeCanonical(&b, run)
+	b.WriteByte('}')
+	flush()
+	return hex.EncodeToString(h.Sum(nil))
 }

@@ -24,14 +24,17 @@ type Job struct {
 	// Params holds the swept values at this point, sorted by name; nil
 	// without a sweep.
 	Params []Param
-	// Canonical is the canonical spec (docs/HASHES.md): JSON with sorted
-	// keys, normalised numbers and every default filled in.
-	Canonical []byte
-	// SpecHash is the hex SHA-256 over version.Numeric and Canonical.
+	// SpecHash is the hex SHA-256 over version.Numeric and the canonical
+	// spec (Spec).
 	SpecHash string
 	// AutoStates is the number of states chosen by states: auto (the
 	// canonical spec holds it as states); 0 when the manifest gave it.
 	AutoStates int
+
+	// canonical is the canonical spec of a job without a sweep; a sweep
+	// point's is rebuilt by Spec, so that a large sweep does not keep one
+	// per point.
+	canonical []byte
 
 	// src rebuilds the job's checked spec when Build asks for it, so that
 	// a large sweep keeps one spec per process, not one per sweep point.
@@ -286,7 +289,7 @@ func expand(r *reporter, p *processSpec) []Job {
 	}
 	rows := 1
 	if s.draws != nil {
-		rows = len(s.draws.rows)
+		rows = s.draws.numRows()
 	}
 	n := rows
 	for _, a := range s.axes {
@@ -295,7 +298,6 @@ func expand(r *reporter, p *processSpec) []Job {
 	src := &jobSource{written: p}
 	jobs := make([]Job, 0, n)
 	var flat []Param // backing array of every point's Params
-	var canon slab   // backing arrays of the canonical specs
 	good := true
 	for point := 0; point < n; point++ {
 		q := p.clone()
@@ -315,12 +317,15 @@ func expand(r *reporter, p *processSpec) []Job {
 				own = flat[at:len(flat):len(flat)]
 			}
 			j := newJob(q, point, own, src)
-			j.Canonical = canon.keep(j.Canonical)
+			j.canonical = nil
 			jobs = append(jobs, j)
 		}
 	}
 	if !good {
 		return nil
+	}
+	if s.draws != nil {
+		s.draws.compact()
 	}
 	return jobs
 }
@@ -342,7 +347,7 @@ func (q *processSpec) setPoint(point int) []Param {
 	}
 	if s.draws != nil {
 		for c, name := range s.draws.columns {
-			set(name, s.draws.rows[point/cells][c])
+			set(name, s.draws.cell(point/cells, c))
 		}
 	}
 	idx := make([]int, len(s.axes))
@@ -358,26 +363,6 @@ func (q *processSpec) setPoint(point int) []Param {
 	return params
 }
 
-// slab packs many small byte slices into shared chunks, so that a sweep's
-// canonical specs cost their length, not an allocation each rounded up.
-type slab struct{ chunk []byte }
-
-const slabChunk = 64 << 10
-
-// keep returns a copy of b in the slab, with its capacity cut to its
-// length so that an append to it cannot reach the next one.
-func (s *slab) keep(b []byte) []byte {
-	if len(b) > slabChunk/4 {
-		return append([]byte(nil), b...)
-	}
-	if cap(s.chunk)-len(s.chunk) < len(b) {
-		s.chunk = make([]byte, 0, slabChunk)
-	}
-	at := len(s.chunk)
-	s.chunk = append(s.chunk, b...)
-	return s.chunk[at:len(s.chunk):len(s.chunk)]
-}
-
 func drawColumns(t *drawTable) int {
 	if t == nil {
 		return 0
@@ -388,5 +373,24 @@ func drawColumns(t *drawTable) int {
 func newJob(q *processSpec, point int, params []Param, src *jobSource) Job {
 	canon := encodeCanonical(q.canonicalSpec())
 	return Job{Process: q.name.v, Kind: q.kind.v, Point: point, Params: params,
-		Canonical: canon, SpecHash: SpecHash(canon), AutoStates: q.autoN, src: src}
+		canonical: canon, SpecHash: SpecHash(canon), AutoStates: q.autoN, src: src}
+}
+
+// Spec returns the job's canonical spec (docs/HASHES.md): JSON with sorted
+// keys, normalised numbers and every default filled in. A sweep point's is
+// rebuilt from the process and checked against the job's spec hash. It
+// fails only for a Job not made by this package.
+func (j Job) Spec() ([]byte, error) {
+	if j.canonical != nil {
+		return j.canonical, nil
+	}
+	q, err := j.checked()
+	if err != nil {
+		return nil, err
+	}
+	canon := encodeCanonical(q.canonicalSpec())
+	if SpecHash(canon) != j.SpecHash {
+		return nil, fmt.Errorf("manifests: job %s/%d rebuilt a spec that does not match its spec hash", j.Process, j.Point)
+	}
+	return canon, nil
 }

@@ -51,7 +51,7 @@ func TestCanonicalNewKinds(t *testing.T) {
 	}
 	for _, tc := range cases {
 		m := parseOne(t, tc.process)
-		if got := string(m.Jobs[0].Canonical); got != tc.want {
+		if got := string(specOf(t, m.Jobs[0])); got != tc.want {
 			t.Errorf("%s\n got %s\nwant %s", tc.process, got, tc.want)
 		}
 	}
@@ -82,8 +82,8 @@ func TestCanonicalFormsNewKinds(t *testing.T) {
 				first = j
 				continue
 			}
-			if string(j.Canonical) != string(first.Canonical) {
-				t.Errorf("%s\n gives %s\n  not %s", f, j.Canonical, first.Canonical)
+			if string(specOf(t, j)) != string(specOf(t, first)) {
+				t.Errorf("%s\n gives %s\n  not %s", f, specOf(t, j), specOf(t, first))
 				continue
 			}
 			s1, err1 := mustBuild(t, first).Solve()

@@ -38,10 +38,8 @@ type Manifest struct {
 	// Jobs lists every process × sweep point, processes in manifest order,
 	// points in sweep order.
 	Jobs []Job
-	// Hash is the manifest hash (docs/HASHES.md) and Canonical the bytes it
-	// is computed from.
-	Hash      string
-	Canonical []byte
+	// Hash is the manifest hash (docs/HASHES.md).
+	Hash string
 }
 
 // Output says where a run's files go and in which format.
@@ -269,7 +267,7 @@ func (d *decoder) decodeManifest(root *yaml.Node) *Manifest {
 	if d.r.failed() {
 		return nil
 	}
-	m.Hash, m.Canonical = manifestHash(m.Run, m.Output.Format, m.Jobs)
+	m.Hash = manifestHash(m.Run, m.Output.Format, m.Jobs)
 	return m
 }
 

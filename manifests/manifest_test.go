@@ -255,12 +255,12 @@ func TestParseSpecRoundTrip(t *testing.T) {
 	for _, tc := range goodManifests {
 		m := loadGood(t, tc.file)
 		for _, j := range m.Jobs {
-			back, err := ParseSpec(j.Canonical)
+			back, err := ParseSpec(specOf(t, j))
 			if err != nil {
-				t.Fatalf("%s %s/%d: ParseSpec(%s): %v", tc.file, j.Process, j.Point, j.Canonical, err)
+				t.Fatalf("%s %s/%d: ParseSpec(%s): %v", tc.file, j.Process, j.Point, specOf(t, j), err)
 			}
-			if string(back.Canonical) != string(j.Canonical) || back.SpecHash != j.SpecHash {
-				t.Errorf("%s %s/%d: canonical spec is not a fixed point:\n%s\n%s", tc.file, j.Process, j.Point, j.Canonical, back.Canonical)
+			if string(specOf(t, back)) != string(specOf(t, j)) || back.SpecHash != j.SpecHash {
+				t.Errorf("%s %s/%d: canonical spec is not a fixed point:\n%s\n%s", tc.file, j.Process, j.Point, specOf(t, j), specOf(t, back))
 			}
 			p1, _ := j.Build()
 			p2, _ := back.Build()

@@ -23,10 +23,10 @@ func TestRebuiltSpecMatchesJob(t *testing.T) {
 			if err != nil {
 				t.Fatalf("%s: %v", tc.file, err)
 			}
-			if got := encodeCanonical(q.canonicalSpec()); !bytes.Equal(got, j.Canonical) {
-				t.Errorf("%s job %s/%d: rebuilt spec\n %s\nwant\n %s", tc.file, j.Process, j.Point, got, j.Canonical)
+			if got := encodeCanonical(q.canonicalSpec()); !bytes.Equal(got, specOf(t, j)) {
+				t.Errorf("%s job %s/%d: rebuilt spec\n %s\nwant\n %s", tc.file, j.Process, j.Point, got, specOf(t, j))
 			}
-			if SpecHash(j.Canonical) != j.SpecHash {
+			if SpecHash(specOf(t, j)) != j.SpecHash {
 				t.Errorf("%s job %s/%d: spec hash does not match its canonical spec", tc.file, j.Process, j.Point)
 			}
 			n++
@@ -78,4 +78,15 @@ func TestBuildConcurrent(t *testing.T) {
 	for err := range errs {
 		t.Error(err)
 	}
+}
+
+// specOf returns a job's canonical spec, failing the test if it cannot be
+// rebuilt.
+func specOf(t testing.TB, j Job) []byte {
+	t.Helper()
+	b, err := j.Spec()
+	if err != nil {
+		t.Fatal(err)
+	}
+	return b
 }

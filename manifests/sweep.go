@@ -35,7 +35,7 @@ type axis struct {
 func (s *sweepSpec) points() int {
 	n := 1
 	if s.draws != nil {
-		n = len(s.draws.rows)
+		n = s.draws.numRows()
 	}
 	for _, a := range s.axes {
 		n *= len(a.values)

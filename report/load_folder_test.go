@@ -40,12 +40,16 @@ func writeRun(t *testing.T, manifest string, format formats.Format) string {
 				set = &formats.Set{Header: formats.Header{Run: m.Run, Process: p.Name, Kind: p.Kind,
 					Method: prob.Settings.Method.String(), Dim: sol.Chain.Dim, Params: p.Swept, ManifestHash: m.Hash}}
 			}
+			spec, err := job.Spec()
+			if err != nil {
+				t.Fatal(err)
+			}
 			params := map[string]float64{}
 			for _, q := range job.Params {
 				params[q.Name] = q.Value
 			}
 			rec := formats.Record{Point: job.Point, Params: params, SpecHash: job.SpecHash,
-				Spec: job.Canonical, Chain: sol.Chain, Diag: sol.Diagnostics, Baseline: sol.BaselineDiagnostics}
+				Spec: spec, Chain: sol.Chain, Diag: sol.Diagnostics, Baseline: sol.BaselineDiagnostics}
 			if sol.Baseline != nil {
 				rec.BaselineTransition = sol.Baseline.Transition
 			}

@@ -52,7 +52,11 @@ func solveEntry(entry map[string]any) (manifests.Solution, provenance, string, e
 	if err != nil {
 		return none, provenance{}, "", flagError(err, paramFlags)
 	}
-	return sol, provenance{Spec: json.RawMessage(job.Canonical), SpecHash: job.SpecHash,
+	spec, err := job.Spec()
+	if err != nil {
+		return none, provenance{}, "", err
+	}
+	return sol, provenance{Spec: json.RawMessage(spec), SpecHash: job.SpecHash,
 			ChainHash: batch.ChainHash(job, sol), Numeric: version.Numeric, Tool: version.Tool, AutoStates: job.AutoStates},
 		prob.FallbackAdvice(sol, 0), nil
 }

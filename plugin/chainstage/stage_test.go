@@ -103,7 +103,11 @@ func TestDiscretizeJobSpecReproducesTheManifestChain(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	one, err := s.Discretize(ctx, plugin.DiscretizeRequest{JobSpec: m.Jobs[2].Canonical, OutDir: t.TempDir()})
+	spec, err := m.Jobs[2].Spec()
+	if err != nil {
+		t.Fatal(err)
+	}
+	one, err := s.Discretize(ctx, plugin.DiscretizeRequest{JobSpec: spec, OutDir: t.TempDir()})
 	if err != nil {
 		t.Fatal(err)
 	}
