@@ -95,7 +95,7 @@ func TestEncoderError(t *testing.T) {
 	defer mem.AssertSize(t, 0)
 	schema := schemaFor(TableTransitions, 1, nil)
 	sink := &failingSink{n: 1}
-	tw := newTableWriter(TableTransitions, schema, sink, mem, 4)
+	tw := newTableWriter(TableTransitions, schema, sink, mem, 4, make(chan struct{}, 1))
 	var flushErr error
 	for row := 0; row < 40 && flushErr == nil; row++ {
 		tw.i32(0).Append(0)

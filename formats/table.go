@@ -24,15 +24,19 @@ type tableWriter struct {
 	rows   int64
 
 	queue   chan arrow.RecordBatch // batches waiting for the encoder
+	slots   chan struct{}          // shared by the set's tables: encodes at once
 	stopped chan struct{}          // closed when the encoder has returned
 	mu      sync.Mutex
 	err     error // the encoder's first error; later batches are dropped
 	ended   bool  // queue closed
 }
 
-func newTableWriter(name string, schema *arrow.Schema, s sink, mem memory.Allocator, limit int) *tableWriter {
+// newTableWriter starts a table's encoder; slots bounds how many of a set's
+// tables encode at once (each encode holds a compressor and a row group's
+// pages), nil for no bound.
+func newTableWriter(name string, schema *arrow.Schema, s sink, mem memory.Allocator, limit int, slots chan struct{}) *tableWriter {
 	t := &tableWriter{name: name, schema: schema, b: array.NewRecordBuilder(mem, schema),
-		hash: newContentHasher(name, schema), sink: s, limit: limit,
+		hash: newContentHasher(name, schema), sink: s, limit: limit, slots: slots,
 		// Unbuffered: a batch is built while the one before it is encoded,
 		// so a table holds at most two batches.
 		queue: make(chan arrow.RecordBatch), stopped: make(chan struct{})}
@@ -46,9 +50,15 @@ func (t *tableWriter) encode() {
 	defer close(t.stopped)
 	for rec := range t.queue {
 		if t.failed() == nil {
+			if t.slots != nil {
+				t.slots <- struct{}{}
+			}
 			err := t.hash.add(rec)
 			if err == nil {
 				err = t.sink.write(rec)
+			}
+			if t.slots != nil {
+				<-t.slots
 			}
 			if err != nil {
 				t.mu.Lock()

@@ -7,6 +7,7 @@ import (
 	"math"
 	"os"
 	"path/filepath"
+	"runtime"
 	"sort"
 	"strconv"
 	"unicode/utf8"
@@ -121,6 +122,9 @@ func Create(dir string, h Header, opt Options) (*Writer, error) {
 		limit = DefaultBatchRows
 	}
 	w := &Writer{dir: dir, h: h, mem: mem, tables: map[string]*tableWriter{}, specs: newSpecDigest()}
+	// As many tables encode at once as the process may use cores: more
+	// would not be faster, and each holds a compressor and a row group.
+	slots := make(chan struct{}, runtime.GOMAXPROCS(0))
 	for _, name := range Tables {
 		schema := schemaFor(name, h.Dim, h.Params)
 		path := filepath.Join(dir, FileName(h.Process, name, opt.Format))
@@ -136,7 +140,7 @@ func Create(dir string, h Header, opt Options) (*Writer, error) {
 			return nil, err
 		}
 		w.sinks = append(w.sinks, s)
-		w.tables[name] = newTableWriter(name, schema, s, mem, limit)
+		w.tables[name] = newTableWriter(name, schema, s, mem, limit, slots)
 	}
 	return w, nil
 }
