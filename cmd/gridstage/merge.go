@@ -30,6 +30,7 @@ reading, so a damaged shard file stops the merge.`,
 			if out == "" {
 				return badInput("--out is required: the folder to write the merged output to")
 			}
+			leanGC()
 			res, err := merge.Merge(args, out)
 			var ie *merge.InputError
 			if errors.As(err, &ie) {

@@ -71,6 +71,7 @@ On a Slurm array job the share of jobs is taken from the array variables;
 			if workers < 0 {
 				return badInput("--workers %d is out of range: want 0 (every core) or more", workers)
 			}
+			leanGC()
 			if workers > 0 {
 				// K workers use K cores in all: K jobs solved at once, and
 				// the writing, hashing and compression of the output
