@@ -21,13 +21,13 @@ func TestMatchingInCanonicalSpec(t *testing.T) {
 		return m.Jobs[0]
 	}
 	plain, exact, smooth := parse(""), parse("    matching: exact\n"), parse("    matching: smooth\n")
-	if plain.SpecHash != exact.SpecHash || string(plain.Canonical) != string(exact.Canonical) {
-		t.Errorf("matching: exact changes the spec:\n%s\n%s", plain.Canonical, exact.Canonical)
+	if plain.SpecHash != exact.SpecHash || string(specOf(t, plain)) != string(specOf(t, exact)) {
+		t.Errorf("matching: exact changes the spec:\n%s\n%s", specOf(t, plain), specOf(t, exact))
 	}
-	if !strings.Contains(string(smooth.Canonical), `"matching":"smooth"`) || smooth.SpecHash == plain.SpecHash {
-		t.Errorf("matching: smooth is not in the canonical spec: %s", smooth.Canonical)
+	if !strings.Contains(string(specOf(t, smooth)), `"matching":"smooth"`) || smooth.SpecHash == plain.SpecHash {
+		t.Errorf("matching: smooth is not in the canonical spec: %s", specOf(t, smooth))
 	}
-	back, err := ParseSpec(smooth.Canonical)
+	back, err := ParseSpec(specOf(t, smooth))
 	if err != nil {
 		t.Fatal(err)
 	}
