@@ -9,8 +9,10 @@ import (
 )
 
 // maxJobs bounds the jobs of one manifest (all processes and sweep points),
-// so that a typo in a range cannot ask for billions of chains.
-const maxJobs = 100000
+// so that a typo in a range cannot ask for billions of chains. A million
+// is the estimation scale docs/BENCHMARKS.md plans for; a loaded job costs
+// about 250 bytes.
+const maxJobs = 1000000
 
 // sweepSpec is a process's sweep: Cartesian axes and a table of draws. The
 // points are every draw (in file order) combined with every combination of
