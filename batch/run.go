@@ -41,6 +41,10 @@ type Options struct {
 	Progress func(n int)
 	// Force rewrites the output even when it is already up to date.
 	Force bool
+	// PointList keeps every point's spec and chain hashes in
+	// Result.Sets[i].Points; without it they are nil (a run of a million
+	// points need not hold them: run.json lists them).
+	PointList bool
 	// Advise computes grid advice (Result.Advice) for every process with
 	// states that fell back; it solves a few chains more per such process.
 	Advise bool
@@ -205,6 +209,7 @@ func Run(ctx context.Context, m *manifests.Manifest, opt Options) (*Result, erro
 	}
 
 	sets := newSetWriter(m, dir, format)
+	sets.list = opt.PointList
 	if !sh.Whole() {
 		sets.rows = ShardBatchRows
 	}

@@ -18,7 +18,8 @@ type setWriter struct {
 	m      *manifests.Manifest
 	dir    string
 	format formats.Format
-	rows   int // rows per batch; 0 for the default
+	rows   int  // rows per batch; 0 for the default
+	list   bool // keep the sets' point lists
 	open   map[string]*formats.Writer
 	order  []string
 	failed map[string]bool
@@ -39,7 +40,7 @@ func (s *setWriter) append(job manifests.Job, sol manifests.Solution, spec []byt
 		h := formats.Header{Run: s.m.Run, Process: job.Process, Kind: job.Kind, Method: sol.Method().String(),
 			Dim: sol.Dim(), Params: sweptNames(s.m, job.Process), ManifestHash: s.m.Hash}
 		var err error
-		if w, err = formats.Create(s.dir, h, formats.Options{Format: s.format, BatchRows: s.rows}); err != nil {
+		if w, err = formats.Create(s.dir, h, formats.Options{Format: s.format, BatchRows: s.rows, NoPointList: !s.list}); err != nil {
 			return "", fmt.Errorf("batch: %s: %w", job.Process, err)
 		}
 		s.open[job.Process] = w

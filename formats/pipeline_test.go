@@ -141,3 +141,26 @@ func TestAbortStopsEncoders(t *testing.T) {
 		t.Errorf("%s left behind after Abort", e.Name())
 	}
 }
+
+// TestNoPointList: without the point list a set's files are the same
+// bytes and Result.Points is nil.
+func TestNoPointList(t *testing.T) {
+	set := sweepSet(t, 4, 1, 5)
+	a, b := t.TempDir(), t.TempDir()
+	ra, err := Write(a, set, Options{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	rb, err := Write(b, set, Options{NoPointList: true})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(ra.Points) != 4 || rb.Points != nil {
+		t.Fatalf("point lists of %d and %d entries, want 4 and none", len(ra.Points), len(rb.Points))
+	}
+	for _, f := range ra.Files {
+		if string(readFile(t, f.Path)) != string(readFile(t, filepath.Join(b, filepath.Base(f.Path)))) {
+			t.Errorf("%s differs without the point list", filepath.Base(f.Path))
+		}
+	}
+}

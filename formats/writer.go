@@ -28,6 +28,10 @@ type Options struct {
 	BatchRows int
 	// Allocator allocates Arrow buffers; nil means memory.DefaultAllocator.
 	Allocator memory.Allocator
+	// NoPointList leaves Result.Points nil, for a caller that takes each
+	// point's hashes from EndPoint: a set of a million points need not
+	// keep them all.
+	NoPointList bool
 }
 
 // DefaultBatchRows is the default number of rows per row group or batch.
@@ -73,6 +77,8 @@ type Writer struct {
 	sinks  []sink
 	specs  *specDigest
 	done   []PointHash
+	points int  // points finished
+	list   bool // keep done
 
 	cur      *pointRow
 	curHash  *chainHasher
@@ -122,6 +128,7 @@ func Create(dir string, h Header, opt Options) (*Writer, error) {
 		limit = DefaultBatchRows
 	}
 	w := &Writer{dir: dir, h: h, mem: mem, tables: map[string]*tableWriter{}, specs: newSpecDigest()}
+	w.list = !opt.NoPointList
 	// As many tables encode at once as the process may use cores: more
 	// would not be faster, and each holds a compressor and a row group.
 	slots := make(chan struct{}, runtime.GOMAXPROCS(0))
@@ -350,7 +357,10 @@ func (w *Writer) endPoint() error {
 	w.curEnded = true
 	w.cur.chainHash = w.curHash.sum()
 	w.specs.add(w.cur.point, w.cur.specHash)
-	w.done = append(w.done, PointHash{Point: w.cur.point, SpecHash: w.cur.specHash, ChainHash: w.cur.chainHash})
+	w.points++
+	if w.list {
+		w.done = append(w.done, PointHash{Point: w.cur.point, SpecHash: w.cur.specHash, ChainHash: w.cur.chainHash})
+	}
 	return appendPoint(w.tables[TablePoints], w.cur)
 }
 
@@ -383,11 +393,11 @@ func (w *Writer) close() (Result, error) {
 		return Result{}, err
 	}
 	var single *pointRow // the only point, the last one appended
-	if len(w.done) == 1 {
+	if w.points == 1 {
 		single = w.cur
 	}
 	res := Result{Points: w.done, SpecDigest: w.specs.sum()}
-	base := baseMeta(w.h, len(w.done), res.SpecDigest)
+	base := baseMeta(w.h, w.points, res.SpecDigest)
 	if single != nil {
 		base[KeySpecHash] = single.specHash
 		base[KeySpec] = string(single.spec)

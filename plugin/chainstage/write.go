@@ -22,6 +22,7 @@ func WriteSets(ctx context.Context, m *manifests.Manifest, dir string) ([]plugin
 			opt.Cache = c
 		}
 	}
+	opt.PointList = true // the chain references name every point
 	res, err := batch.Run(ctx, m, opt)
 	if err != nil {
 		return nil, err
