@@ -295,7 +295,7 @@ func Run(ctx context.Context, m *manifests.Manifest, opt Options) (*Result, erro
 // many shards at once, each through the pages of its current row group, so
 // shards are written in smaller row groups than a whole run's files (whose
 // bytes a merge reproduces). Content hashes do not depend on it.
-const ShardBatchRows = 8192
+const ShardBatchRows = 4096
 
 func paramMap(ps []manifests.Param) map[string]float64 {
 	if len(ps) == 0 {

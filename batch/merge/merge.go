@@ -64,7 +64,7 @@ func (e *InputError) Error() string {
 // FanIn is the largest number of sets merged at once; a merge of more
 // shards goes through intermediate sets. Each open set costs a few
 // megabytes of buffers (the Parquet pages of its current row group).
-var FanIn = 16
+var FanIn = 8
 
 // Merge combines the shard folders into folder out, which is created if
 // needed and must not be one of them, and writes there the run record
