@@ -36,8 +36,8 @@ func TestStatesAuto(t *testing.T) {
 			t.Fatal(err)
 		}
 		want := explicit.Jobs[0]
-		if job.SpecHash != want.SpecHash || string(job.Canonical) != string(want.Canonical) {
-			t.Errorf("rho %g: auto spec %s, want %s", rho, job.Canonical, want.Canonical)
+		if job.SpecHash != want.SpecHash || string(specOf(t, job)) != string(specOf(t, want)) {
+			t.Errorf("rho %g: auto spec %s, want %s", rho, specOf(t, job), specOf(t, want))
 		}
 		p, err := job.Build()
 		if err != nil {
