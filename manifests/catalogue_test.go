@@ -9,7 +9,7 @@ import (
 	"testing"
 )
 
-var update = flag.Bool("update", false, "rewrite the .want files of the malformed-manifest catalogue")
+var update = flag.Bool("update", false, "rewrite the .want files of the malformed-manifest catalogue and the examples of docs/HASHES.md")
 
 // badManifests lists the malformed manifests under testdata/manifests/bad
 // (each with a .want file holding its exact error output) and the sentinel
