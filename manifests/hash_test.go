@@ -32,10 +32,10 @@ func TestCanonicalSpec(t *testing.T) {
 	if string(specOf(t, j)) != minimalCanonical {
 		t.Errorf("canonical spec\n got %s\nwant %s", specOf(t, j), minimalCanonical)
 	}
-	if got := version.SpecHash("2", j.Canonical); got != minimalSpecHash {
+	if got := version.SpecHash("2", specOf(t, j)); got != minimalSpecHash {
 		t.Errorf("spec hash under numeric version 2: %s, want %s (coreutils sha256sum)", got, minimalSpecHash)
 	}
-	if want := version.SpecHash(version.Numeric, j.Canonical); j.SpecHash != want {
+	if want := version.SpecHash(version.Numeric, specOf(t, j)); j.SpecHash != want {
 		t.Errorf("spec hash %s, want %s: the hash under this build's numeric version %s", j.SpecHash, want, version.Numeric)
 	}
 }
