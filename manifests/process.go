@@ -201,7 +201,10 @@ func (p *processSpec) check(r *reporter) bool {
 		case !maxent:
 			r.add(p.moments.at, ErrRule, "applies to method maxent only: %s matches a fixed set of moments", method)
 			ok = false
-		case !checkInt(r, p.moments, 1, 8):
+		case !checkInt(r, p.moments, 0, 8):
+			ok = false
+		case p.moments.v == 0 && !priorKind(p.spec):
+			r.add(p.moments.at, ErrRule, "0 (the node rule's own weights, no moment matched) applies to kinds ar1 and iid only")
 			ok = false
 		case ok:
 			if limit, why := p.spec.momentLimit(); int(p.moments.v) > limit {
@@ -296,6 +299,9 @@ func (p *processSpec) check(r *reporter) bool {
 	}
 	if maxent {
 		p.settings.Moments = int(p.moments.v)
+		if p.moments.set && p.moments.v == 0 {
+			p.settings.Moments = solver.NoMoments
+		}
 	}
 	if sk, has := p.spec.(settingsKind); has {
 		sk.settings(&p.settings)
@@ -416,4 +422,14 @@ func (p *processSpec) canonicalSpec() object {
 	}
 	p.spec.canonical(o)
 	return o
+}
+
+// priorKind reports whether a kind accepts moments: 0, the quadrature
+// rule's own weights with no moment matched (solver.NoMoments).
+func priorKind(s kindSpec) bool {
+	switch s.(type) {
+	case *ar1Spec, *iidSpec:
+		return true
+	}
+	return false
 }

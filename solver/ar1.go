@@ -27,6 +27,9 @@ type Settings struct {
 	Method Method
 	// Moments is the number of conditional moments MaxEnt matches; 0 means
 	// 4, or fewer when the innovation lacks finite moments of that order.
+	// NoMoments matches none (AR(1) and i.i.d. laws): each row is then the
+	// quadrature rule's own weights times the conditional density,
+	// normalised — the prior maximum entropy starts from.
 	Moments int
 	// Nodes is the quadrature rule that places MaxEnt's grid points; the
 	// zero value is NodesLattice.
@@ -75,6 +78,11 @@ func MaxMoments(shock Distribution) int {
 	return 8
 }
 
+// NoMoments, as Settings.Moments, asks MaxEnt to match no moment: the
+// chain is the quadrature rule's prior, the baseline that shows what
+// matching moments adds.
+const NoMoments = -1
+
 // resolveMoments applies the default and range rules for s.Moments.
 func resolveMoments(s Settings, shock Distribution) (int, error) {
 	if err := checkMatching(s.Matching); err != nil {
@@ -86,6 +94,9 @@ func resolveMoments(s Settings, shock Distribution) (int, error) {
 			return 0, badParam("moments", float64(s.Moments), "unset for method "+s.Method.String()+" (it matches a fixed set of moments)")
 		}
 		return s.Method.ExactMoments(), nil
+	}
+	if s.Moments == NoMoments {
+		return 0, nil
 	}
 	if s.Moments == 0 {
 		return min(4, limit), nil

@@ -77,6 +77,10 @@ func maxentRows(nodes, logW []float64, law conditional, L int, match Matching, t
 // scalarRowSens.
 func maxentRowsKeep(nodes, logW []float64, law conditional, L int, match Matching, trans []float64, matched []int, certs []Certificate, keep *rowMultipliers) {
 	n, m := len(nodes), len(law.Mean)
+	if L == 0 {
+		priorRows(nodes, logW, law, trans, matched, certs)
+		return
+	}
 	targets := shockTargets(law.Shock, L)
 	logq := make([]float64, n)
 	dev := make([]float64, n*L)
@@ -183,5 +187,35 @@ func priorRow(logq, row []float64) {
 	}
 	for j := range row {
 		row[j] /= s
+	}
+}
+
+// priorRows fills each row with the prior of maximum entropy, normalised:
+// q_j ∝ w_j f(x_j | x_i), the quadrature rule's own weights, with no
+// moment matched (Settings.Moments = NoMoments).
+func priorRows(nodes, logW []float64, law conditional, trans []float64, matched []int, certs []Certificate) {
+	n := len(nodes)
+	logq := make([]float64, n)
+	for i := range law.Mean {
+		top := math.Inf(-1)
+		for j, x := range nodes {
+			z := (x - law.Mean[i]) / law.SD[i]
+			if law.Shock == nil {
+				logq[j] = logW[j] - 0.5*z*z
+			} else {
+				logq[j] = logW[j] + law.Shock.LogProb(z)
+			}
+			top = math.Max(top, logq[j])
+		}
+		row := trans[i*n : (i+1)*n]
+		var sum float64
+		for j := range row {
+			row[j] = math.Exp(logq[j] - top)
+			sum += row[j]
+		}
+		for j := range row {
+			row[j] /= sum
+		}
+		matched[i], certs[i] = 0, CertNone
 	}
 }

@@ -127,8 +127,13 @@ func (r chainReport) print(w io.Writer, asJSON bool) error {
 func (r chainReport) printText(w io.Writer) error {
 	c, d := r.Chain, r.Diag
 	n := c.States()
-	fmt.Fprintf(w, "%s chain, method %s, %d states, %d moments requested, %d of %d states matched them all\n\n",
-		r.Kind, c.Method, n, c.Moments, n-c.Fallbacks(), n)
+	if c.Moments == 0 {
+		fmt.Fprintf(w, "%s chain, method %s, %d states, no moment matched: each row is the node rule's own weights times the conditional density, normalised (the prior maximum entropy starts from)\n\n",
+			r.Kind, c.Method, n)
+	} else {
+		fmt.Fprintf(w, "%s chain, method %s, %d states, %d moments requested, %d of %d states matched them all\n\n",
+			r.Kind, c.Method, n, c.Moments, n-c.Fallbacks(), n)
+	}
 	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)
 	fmt.Fprintln(tw, "state\tlevel\tstationary\tmatched\tmean err\tvar err\tskew err\tkurt err\t")
 	for i, s := range d.States {

@@ -82,7 +82,7 @@ func (m *methodSettings) settings(cmd *cobra.Command) (solver.Settings, error) {
 		}
 	}
 	if cmd.Flags().Changed("moments") {
-		if err := intRange("moments", m.moments, 1, 8); err != nil {
+		if err := intRange("moments", m.moments, 0, 8); err != nil {
 			return s, err
 		}
 	}

@@ -159,7 +159,11 @@ func printIID(w io.Writer, law map[string]any, d *solver.Discrete, p solver.IID,
 		return finitejson.Encode(w, iidJSON{Kind: "iid", Distribution: law, Grid: grid, Weights: d.Weights, Moments: d.Moments,
 			Diagnostics: iidDiag{Matched: d.Matched, Discrete: got, True: truth}, Advice: advice, provenance: prov})
 	}
-	fmt.Fprintf(w, "%s distribution, %d points, %d of %d moments matched\n\n", law["law"], len(d.Nodes), d.Matched, d.Moments)
+	if d.Moments == 0 {
+		fmt.Fprintf(w, "%s distribution, %d points, no moment matched: the weights are the node rule's own times the density, normalised\n\n", law["law"], len(d.Nodes))
+	} else {
+		fmt.Fprintf(w, "%s distribution, %d points, %d of %d moments matched\n\n", law["law"], len(d.Nodes), d.Matched, d.Moments)
+	}
 	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)
 	fmt.Fprintln(tw, "point\tlevel\tweight\t")
 	for i, x := range d.Nodes {

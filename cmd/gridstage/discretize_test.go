@@ -139,7 +139,7 @@ func TestDiscretizeBadInput(t *testing.T) {
 		{[]string{"discretize", "ar1", "--rho", "0.5", "--sigma", "0"}, "--sigma 0 is out of range: want finite and > 0"},
 		{[]string{"discretize", "ar1", "--rho", "0.5", "--sigma", "-1"}, "--sigma -1 is out of range"},
 		{[]string{"discretize", "ar1", "--rho", "0.5", "--sigma", "1", "--states", "1"}, "--states 1 is out of range: want an integer from 2 to 2000"},
-		{[]string{"discretize", "ar1", "--rho", "0.5", "--sigma", "1", "--moments", "9"}, "--moments 9 is out of range: want an integer from 1 to 8"},
+		{[]string{"discretize", "ar1", "--rho", "0.5", "--sigma", "1", "--moments", "9"}, "--moments 9 is out of range: want an integer from 0 to 8"},
 		{[]string{"discretize", "ar1", "--rho", "0.5", "--sigma", "1", "--method", "rouwenhorst", "--moments", "4"}, "--moments applies to --method maxent only"},
 		{[]string{"discretize", "ar1", "--rho", "0.5", "--sigma", "1", "--innovation", "t", "--nu", "3", "--moments", "4"}, "--moments 4 is out of range: want an integer from 1 to 2, since the t innovation has no finite moment of order 3"},
 		{[]string{"discretize", "ar1", "--rho", "0.5", "--sigma", "1", "--method", "nearest"}, `--method "nearest" is not recognised`},
@@ -247,5 +247,22 @@ func TestDiscretizeSensitivitiesJSON(t *testing.T) {
 	}
 	if code, _, errOut := run(t, "discretize", "ar1", "--rho", "0.9", "--sigma", "0.1", "--method", "tauchen", "--sensitivities", "--json"); code != 2 || !strings.Contains(errOut, "--sensitivities needs --method maxent") {
 		t.Errorf("tauchen with --sensitivities: exit %d, %q", code, errOut)
+	}
+}
+
+// TestDiscretizeNoMoments: --moments 0 gives the node rule's own weights
+// and says so.
+func TestDiscretizeNoMoments(t *testing.T) {
+	code, out, errOut := run(t, "discretize", "ar1", "--rho", "0.9", "--sigma", "0.1", "--states", "5", "--moments", "0")
+	if code != 0 || !strings.Contains(out, "no moment matched: each row is the node rule's own weights") {
+		t.Errorf("ar1 --moments 0: exit %d\n%s%s", code, out, errOut)
+	}
+	code, out, errOut = run(t, "discretize", "iid", "--distribution", "normal", "--states", "5", "--moments", "0")
+	if code != 0 || !strings.Contains(out, "no moment matched: the weights are the node rule's own") {
+		t.Errorf("iid --moments 0: exit %d\n%s%s", code, out, errOut)
+	}
+	code, _, errOut = run(t, "discretize", "var", "--coef", "0.9,0,0,0.8", "--cov", "0.01,0,0,0.01", "--states", "3", "--moments", "0")
+	if code != 2 || !strings.Contains(errOut, "--moments 0 is out of range") {
+		t.Errorf("var --moments 0: exit %d, %q (want 2: a vector chain has no prior-only form here)", code, errOut)
 	}
 }

@@ -14,6 +14,7 @@ import (
 
 	"gridstage/formats"
 	"gridstage/internal/finitejson"
+	"gridstage/internal/plural"
 	"gridstage/solver"
 )
 
@@ -177,7 +178,11 @@ func inspect(w io.Writer, ref formats.SetRef, sel inspectSelection, asJSON bool)
 			return badInput("--where: %s is not a swept parameter of %s (swept: %s)", name, ref.Process, strings.Join(r.Header.Params, ", "))
 		}
 	}
-	chosen := -1
+	// One pass over the set: the records of the first point that fits the
+	// selection are kept; every fitting point is counted, so that an
+	// ambiguous --where is refused rather than resolved silently.
+	var kept []formats.Record
+	var matched []formats.Record // the first record of each fitting point
 	for {
 		rec, err := r.Next()
 		if err == io.EOF {
@@ -186,38 +191,82 @@ func inspect(w io.Writer, ref formats.SetRef, sel inspectSelection, asJSON bool)
 		if err != nil {
 			return err
 		}
-		if chosen < 0 {
-			ok := (sel.point < 0 || rec.Point == sel.point) && (sel.where == nil || matches(rec.Params, sel.where))
-			if !ok {
-				continue
-			}
-			chosen = rec.Point
+		ok := (sel.point < 0 || rec.Point == sel.point) && (sel.where == nil || matches(rec.Params, sel.where))
+		if !ok {
+			continue
 		}
-		if rec.Point != chosen {
-			break
+		if len(matched) == 0 || matched[len(matched)-1].Point != rec.Point {
+			matched = append(matched, rec)
 		}
-		if sel.age < 0 || rec.Age == sel.age {
-			// The next age's grid, where this age's transitions lead.
-			var next *formats.Record
-			if rec.Chain.Transition != nil {
-				if nr, err := r.Next(); err == nil && nr.Point == rec.Point {
-					next = &nr
-				} else if err != nil && err != io.EOF {
-					return err
-				}
-			}
-			return showRecord(w, r, &rec, next, asJSON)
+		if rec.Point == matched[0].Point {
+			kept = append(kept, rec)
+		} else if sel.where == nil {
+			break // the default: the first point
 		}
 	}
 	switch {
-	case chosen < 0 && sel.point >= 0:
-		return badInput("%s has no sweep point %d (it has %d points)", ref.Process, sel.point, r.Points)
-	case chosen < 0 && sel.where != nil:
-		return badInput("no sweep point of %s matches --where", ref.Process)
-	case chosen < 0:
+	case len(matched) == 0 && sel.point >= 0:
+		return badInput("%s has no sweep point %d (it has %s, numbered from 0)", ref.Process, sel.point, plural.Count(r.Points, "point", "points"))
+	case len(matched) == 0 && sel.where != nil:
+		return badInput("no sweep point of %s matches --where %s", ref.Process, whereText(sel.where))
+	case len(matched) == 0:
 		return badInput("%s holds no chains", ref.Process)
+	case len(matched) > 1:
+		const shown = 10
+		var list []string
+		for i, m := range matched {
+			if i == shown {
+				list = append(list, fmt.Sprintf("… %d more", len(matched)-shown))
+				break
+			}
+			list = append(list, "point "+strconv.Itoa(m.Point)+" ("+pointParams(r.Header.Params, m.Params)+")")
+		}
+		return badInput("--where %s matches %d sweep points of %s: %s; add parameters to --where or choose one with --point N",
+			whereText(sel.where), len(matched), ref.Process, strings.Join(list, "; "))
 	}
-	return badInput("sweep point %d of %s has no age %d", chosen, ref.Process, sel.age)
+	for i := range kept {
+		if sel.age >= 0 && kept[i].Age != sel.age {
+			continue
+		}
+		// The next age's grid, where this age's transitions lead.
+		var next *formats.Record
+		if kept[i].Chain.Transition != nil && i+1 < len(kept) {
+			next = &kept[i+1]
+		}
+		return showRecord(w, r, &kept[i], next, asJSON)
+	}
+	last := kept[len(kept)-1]
+	ages := "age 0 only"
+	if len(kept) > 1 {
+		ages = fmt.Sprintf("ages 0 to %d", last.Age)
+		if last.Chain.Transition == nil {
+			ages += fmt.Sprintf(" (age %d is the final grid, which no transition leaves)", last.Age)
+		}
+	}
+	return badInput("sweep point %d of %s has no age %d: it has %s", kept[0].Point, ref.Process, sel.age, ages)
+}
+
+// whereText writes a --where selection back as name=value,...
+func whereText(where map[string]float64) string {
+	names := make([]string, 0, len(where))
+	for k := range where {
+		names = append(names, k)
+	}
+	sort.Strings(names)
+	parts := make([]string, len(names))
+	for i, k := range names {
+		parts[i] = k + "=" + strconv.FormatFloat(where[k], 'g', -1, 64)
+	}
+	return strings.Join(parts, ",")
+}
+
+// pointParams writes a point's swept values in the set's order.
+func pointParams(names []string, values map[string]float64) string {
+	parts := make([]string, len(names))
+	for i, p := range names {
+		parts[i] = p + "=" + strconv.FormatFloat(values[p], 'g', -1, 64)
+	}
+	return strings.Join(parts, ", ")
 }
 
 // inspectJSON is what inspect --json prints.
@@ -272,19 +321,17 @@ func showRecord(w io.Writer, r *formats.Reader, rec *formats.Record, next *forma
 		}
 		return finitejson.Encode(w, j)
 	}
-	fmt.Fprintf(w, "run %s, process %s (%s), sweep point %d of %d", r.Header.Run, r.Header.Process, r.Header.Kind, rec.Point, r.Points)
+	fmt.Fprintf(w, "run %s, process %s (%s), sweep point %d (%s in the set)", r.Header.Run, r.Header.Process, r.Header.Kind,
+		rec.Point, plural.Count(r.Points, "point", "points"))
 	if len(r.Header.Params) > 0 {
-		parts := make([]string, len(r.Header.Params))
-		for i, p := range r.Header.Params {
-			parts[i] = fmt.Sprintf("%s=%g", p, rec.Params[p])
-		}
-		fmt.Fprintf(w, " (%s)", strings.Join(parts, ", "))
+		fmt.Fprintf(w, ", %s", pointParams(r.Header.Params, rec.Params))
 	}
 	fmt.Fprintf(w, ", age %d\nspec hash %s\n\n", rec.Age, rec.SpecHash)
 	if terminal {
 		fmt.Fprintf(w, "final age of a life-cycle chain: grid only, no transition\n")
+		fmt.Fprintf(w, "state\tlevel\n")
 		for i := 0; i < c.States(); i++ {
-			fmt.Fprintf(w, "%d\t%v\n", i, c.State(i))
+			fmt.Fprintf(w, "%d\t%s\n", i, levelList(c.State(i)))
 		}
 		return nil
 	}
@@ -309,7 +356,7 @@ func showRecord(w io.Writer, r *formats.Reader, rec *formats.Record, next *forma
 		}
 	}
 	if rec.Initial != nil {
-		fmt.Fprintf(w, "initial distribution: %v\n\n", rec.Initial)
+		fmt.Fprintf(w, "initial distribution: %s\n\n", levelList(rec.Initial))
 	}
 	return rep.printText(w)
 }

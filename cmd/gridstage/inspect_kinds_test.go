@@ -101,6 +101,10 @@ func TestInspectLifeCycleAges(t *testing.T) {
 	if code != 0 || !strings.Contains(out, "final age of a life-cycle chain") {
 		t.Errorf("inspect of the terminal age: exit %d\n%s", code, out)
 	}
+	// Levels as numbers, never Go's slice notation ("0 [-0.97…]").
+	if strings.Contains(out, "[") {
+		t.Errorf("inspect of the terminal age prints a Go slice:\n%s", out)
+	}
 	code, out, _ = run(t, "inspect", dir, "--process", "earnings", "--age", "0", "--json")
 	var j struct {
 		Initial  []float64   `json:"initial"`
@@ -109,7 +113,7 @@ func TestInspectLifeCycleAges(t *testing.T) {
 	if err := json.Unmarshal([]byte(out), &j); code != 0 || err != nil || len(j.Initial) != 5 || len(j.NextGrid) != 5 {
 		t.Errorf("inspect --age 0 --json: exit %d, %v, initial %v, next grid %v", code, err, j.Initial, j.NextGrid)
 	}
-	if code, _, errOut := run(t, "inspect", dir, "--process", "earnings", "--age", "3"); code != 2 || !strings.Contains(errOut, "no age 3") {
+	if code, _, errOut := run(t, "inspect", dir, "--process", "earnings", "--age", "3"); code != 2 || !strings.Contains(errOut, "no age 3: it has ages 0 to 2 (age 2 is the final grid") {
 		t.Errorf("inspect --age 3 of a three-age chain: exit %d, %s", code, errOut)
 	}
 }

@@ -1,6 +1,7 @@
 package main
 
 import (
+	"fmt"
 	"os"
 	"path/filepath"
 	"strings"
@@ -69,10 +70,40 @@ func TestVerifyCommand(t *testing.T) {
 	}
 }
 
+// TestInspectAmbiguousWhere: a --where that fits several sweep points is
+// refused (exit 2) with the points it fits, never resolved to the first.
+func TestInspectAmbiguousWhere(t *testing.T) {
+	dir := t.TempDir()
+	set := &formats.Set{Header: formats.Header{Run: "wage-test", Process: "wages", Kind: "ar1", Method: "maxent", Dim: 1, Params: []string{"rho", "sigma"}}}
+	for i, v := range [][2]float64{{0.9, 0.1}, {0.9, 0.2}, {0.8, 0.1}} {
+		p := solver.AR1{Rho: v[0], Sigma: v[1]}
+		c, err := p.Discretize(solver.Settings{States: 5})
+		if err != nil {
+			t.Fatal(err)
+		}
+		spec := []byte(fmt.Sprintf(`{"rho":%g,"sigma":%g}`, v[0], v[1]))
+		set.Records = append(set.Records, formats.Record{Point: i, Params: map[string]float64{"rho": v[0], "sigma": v[1]},
+			SpecHash: version.SpecHash(version.Numeric, spec), Spec: spec, Chain: c, Diag: solver.Diagnose(c, p)})
+	}
+	if _, err := formats.Write(dir, set, formats.Options{}); err != nil {
+		t.Fatal(err)
+	}
+	code, _, errOut := run(t, "inspect", dir, "--where", "rho=0.9")
+	if code != 2 || !strings.Contains(errOut, "--where rho=0.9 matches 2 sweep points of wages: point 0 (rho=0.9, sigma=0.1); point 1 (rho=0.9, sigma=0.2)") {
+		t.Errorf("ambiguous --where: exit %d, %q", code, errOut)
+	}
+	if code, out, errOut := run(t, "inspect", dir, "--where", "rho=0.9,sigma=0.2"); code != 0 || !strings.Contains(out, "sweep point 1 (3 points in the set)") {
+		t.Errorf("--where naming one point: exit %d\n%s%s", code, out, errOut)
+	}
+	if code, _, errOut := run(t, "inspect", dir, "--where", "rho=0.7"); code != 2 || !strings.Contains(errOut, "no sweep point of wages matches --where rho=0.7") {
+		t.Errorf("--where matching nothing: exit %d, %q", code, errOut)
+	}
+}
+
 func TestInspectCommand(t *testing.T) {
 	dir := writeOutput(t, formats.Arrow)
 	code, out, errOut := run(t, "inspect", dir, "--where", "rho=0.9")
-	if code != 0 || !strings.Contains(out, "sweep point 1 of 2 (rho=0.9)") || !strings.Contains(out, "transition matrix") {
+	if code != 0 || !strings.Contains(out, "sweep point 1 (2 points in the set), rho=0.9") || !strings.Contains(out, "transition matrix") {
 		t.Fatalf("inspect --where: exit %d\n%s%s", code, out, errOut)
 	}
 	code, out, errOut = run(t, "inspect", filepath.Join(dir, "wages.states.arrow"), "--point", "0", "--json")
