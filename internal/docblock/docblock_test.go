@@ -2,6 +2,7 @@ package docblock
 
 import (
 	"bytes"
+	"fmt"
 	"image"
 	"image/color"
 	"image/png"
@@ -192,4 +193,15 @@ func checkGenerator(t *testing.T, root, file string, line int, gen string) {
 		}
 	}
 	t.Errorf("%s:%d: generator %q: no func %s(t *testing.T) in %s/*_test.go", file, line, gen, test, pkg)
+}
+
+func TestTables(t *testing.T) {
+	got := Tables(t, "internal/docblock/testdata/tables.md", "## First")
+	want := [][][]string{{{"x | y", "`z`"}}, {{"1", "2"}}, {{"sub"}}}
+	if fmt.Sprint(got) != fmt.Sprint(want) {
+		t.Errorf("Tables = %q, want %q", got, want)
+	}
+	if s := Section(t, "internal/docblock/testdata/tables.md", "### Sub"); strings.Contains(s, "other") || !strings.Contains(s, "sub") {
+		t.Errorf("Section ### Sub = %q", s)
+	}
 }

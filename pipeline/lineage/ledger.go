@@ -143,7 +143,7 @@ func read(f parquet.ReaderAtSeeker, path string) (recs []Record, err error) {
 	if err := tr.Err(); err != nil && !errors.Is(err, io.EOF) {
 		return nil, fmt.Errorf("lineage: %s: %w", path, err)
 	}
-	if err := checkStructure(f, pf, recs); err != nil {
+	if err := checkStructure(f, pf, recs, want); err != nil {
 		return nil, fmt.Errorf("lineage: %s is damaged: %w", path, err)
 	}
 	return recs, nil

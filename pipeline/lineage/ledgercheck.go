@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"io"
 
+	"github.com/apache/arrow-go/v18/arrow"
 	"github.com/apache/arrow-go/v18/parquet"
 	"github.com/apache/arrow-go/v18/parquet/file"
 
@@ -18,14 +19,15 @@ import (
 // the one written, and DuckDB reads the same rows and types (issue 16: a
 // flipped byte once turned the model column into binary for DuckDB while
 // this reader still read text). A ledger from another writer gets the
-// structural checks of internal/pqcheck.
-func checkStructure(f parquet.ReaderAtSeeker, pf *file.Reader, recs []Record) error {
+// structural checks of internal/pqcheck against the columns of its layout
+// version (layout), so a version 1 ledger is checked as version 1 wrote it.
+func checkStructure(f parquet.ReaderAtSeeker, pf *file.Reader, recs []Record, layout []arrow.Field) error {
 	size, err := f.Seek(0, io.SeekEnd)
 	if err != nil {
 		return err
 	}
 	if pf.MetaData().GetCreatedBy() != createdBy {
-		return pqcheck.Check(pf, f, size, schema())
+		return pqcheck.Check(pf, f, size, arrow.NewSchema(layout, nil))
 	}
 	have := sha256.New()
 	if _, err := io.Copy(have, io.NewSectionReader(f, 0, size)); err != nil {
