@@ -153,6 +153,7 @@ func (p AR1) Discretize(s Settings) (*Chain, error) {
 		setLaw(nodes)
 		c.Certificates = make([]Certificate, n)
 		maxentRows(nodes, logW, law, L, s.Matching, c.Transition, c.Matched, c.Certificates)
+		c.PriorKL = scalarPriorKL(nodes, logW, law, c.Transition)
 		c.Grid = nodes
 	case Tauchen:
 		width := s.Width

@@ -23,6 +23,10 @@ type Chain struct {
 	// or the next level proven infeasible); nil for methods that do not
 	// solve for moments.
 	Certificates []Certificate
+	// PriorKL[i] is the Kullback-Leibler divergence of row i from the
+	// prior weights its method started from (maximum entropy: the
+	// quadrature prior); nil for methods that start from none.
+	PriorKL []float64
 }
 
 // Certificate returns the certificate of state i (CertNone when the chain

@@ -39,6 +39,12 @@ type StateCheck struct {
 	Matched int       `json:"matched"`
 	// Certificate says why Matched moments were matched (see Certificate).
 	Certificate Certificate `json:"certificate"`
+	// PriorKL is the row's Kullback-Leibler divergence from its prior
+	// weights (Chain.PriorKL); nil for methods that start from none.
+	PriorKL *float64 `json:"prior_kl,omitempty"`
+	// Shape says how far the row is from unimodal (see Shape); nil for
+	// vector chains, whose rows have no single order of levels.
+	Shape *RowShape `json:"shape,omitempty"`
 }
 
 // Diagnostics compares a chain with the process it approximates.
@@ -62,6 +68,9 @@ type Diagnostics struct {
 	// Degenerate says why the chain is degenerate (an identity or reducible
 	// transition matrix, see Structure.Degenerate); empty when irreducible.
 	Degenerate string `json:"degenerate,omitempty"`
+	// FarFromUnimodal counts the states whose rows are far from unimodal
+	// (RowShape.FarFromUnimodal).
+	FarFromUnimodal int `json:"far_from_unimodal_states"`
 }
 
 // Diagnose computes the diagnostics of a univariate chain against the truth.
@@ -80,6 +89,10 @@ func Diagnose(c *Chain, truth Truth) Diagnostics {
 		d.States[i] = StateCheck{
 			Level: append([]float64(nil), c.State(i)...), Chain: cm, True: tm,
 			AbsErr: abs, RelErr: rel, Matched: c.Matched[i], Certificate: c.Certificate(i),
+		}
+		d.States[i].PriorKL, d.States[i].Shape = rowDiagnostics(c, i)
+		if sh := d.States[i].Shape; sh != nil && sh.FarFromUnimodal {
+			d.FarFromUnimodal++
 		}
 		d.WorstRelErr.Mean = math.Max(d.WorstRelErr.Mean, math.Abs(rel.Mean))
 		d.WorstRelErr.Var = math.Max(d.WorstRelErr.Var, math.Abs(rel.Var))
@@ -110,6 +123,21 @@ func Diagnose(c *Chain, truth Truth) Diagnostics {
 	}
 	d.Chain.Autocorr = cov / um.Var
 	return d
+}
+
+// rowDiagnostics returns the prior divergence and the shape of row i
+// (each nil where it does not apply).
+func rowDiagnostics(c *Chain, i int) (*float64, *RowShape) {
+	var kl *float64
+	if c.PriorKL != nil {
+		v := c.PriorKL[i]
+		kl = &v
+	}
+	if c.Dim != 1 {
+		return kl, nil
+	}
+	sh := Shape(c.Row(i), c.Grid)
+	return kl, &sh
 }
 
 // weightedMoments returns mean, variance, skewness and kurtosis of the

@@ -16,6 +16,9 @@ type Discrete struct {
 	Moments, Matched int
 	// Certificate says why Matched moments were matched (see Certificate).
 	Certificate Certificate
+	// PriorKL is the Kullback-Leibler divergence of Weights from the
+	// quadrature prior.
+	PriorKL float64
 }
 
 // Discretize returns a discrete distribution with s.States points whose
@@ -89,7 +92,8 @@ func (p IID) Discretize(s Settings) (*Discrete, error) {
 	matched := []int{0}
 	certs := []Certificate{CertNone}
 	maxentRows(nodes, logW, law, L, s.Matching, w, matched, certs)
-	return &Discrete{Nodes: nodes, Weights: w, Moments: L, Matched: matched[0], Certificate: certs[0]}, nil
+	kl := scalarPriorKL(nodes, logW, law, w)[0]
+	return &Discrete{Nodes: nodes, Weights: w, Moments: L, Matched: matched[0], Certificate: certs[0], PriorKL: kl}, nil
 }
 
 // Conditional returns the distribution's moments (they do not depend on x).
@@ -112,11 +116,13 @@ func (p IID) Unconditional() Summary {
 func (d *Discrete) Chain() *Chain {
 	n := len(d.Nodes)
 	c := &Chain{Dim: 1, Grid: append([]float64(nil), d.Nodes...), Transition: make([]float64, n*n),
-		Method: MaxEnt, Moments: d.Moments, Matched: make([]int, n), Certificates: make([]Certificate, n)}
+		Method: MaxEnt, Moments: d.Moments, Matched: make([]int, n), Certificates: make([]Certificate, n),
+		PriorKL: make([]float64, n)}
 	for i := 0; i < n; i++ {
 		copy(c.Transition[i*n:(i+1)*n], d.Weights)
 		c.Matched[i] = d.Matched
 		c.Certificates[i] = d.Certificate
+		c.PriorKL[i] = d.PriorKL
 	}
 	return c
 }

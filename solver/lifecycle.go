@@ -210,6 +210,7 @@ func (p LifeCycle) Discretize(s Settings) (*AgeChain, error) {
 		case MaxEnt:
 			c.Certificates = make([]Certificate, n)
 			maxentRows(grids[t+1], logWs[t+1], law, L, s.Matching, c.Transition, c.Matched, c.Certificates)
+			c.PriorKL = scalarPriorKL(grids[t+1], logWs[t+1], law, c.Transition)
 		case Rouwenhorst:
 			pt := (1 + p.Rho[t]*math.Sqrt(vars[t]/vars[t+1])) / 2
 			rouwenhorstMatrix(n, pt, pt, c.Transition)

@@ -34,6 +34,9 @@ func Product(parts ...*Chain) *Chain {
 	if parts[0].Certificates != nil {
 		out.Certificates = append([]Certificate(nil), parts[0].Certificates...)
 	}
+	if parts[0].PriorKL != nil {
+		out.PriorKL = append([]float64(nil), parts[0].PriorKL...)
+	}
 	for _, b := range parts[1:] {
 		out = kron(out, b)
 	}
@@ -45,7 +48,7 @@ func kron(a, b *Chain) *Chain {
 	na, nb := a.States(), b.States()
 	n, d := na*nb, a.Dim+b.Dim
 	c := &Chain{Dim: d, Grid: make([]float64, n*d), Transition: make([]float64, n*n), Matched: make([]int, n),
-		Method: a.Method, Moments: min(a.Moments, b.Moments)}
+		Method: a.Method, Moments: min(a.Moments, b.Moments), PriorKL: sumKL(a.PriorKL, b.PriorKL)}
 	for i := 0; i < na; i++ {
 		for k := 0; k < nb; k++ {
 			s := i*nb + k

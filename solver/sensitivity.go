@@ -303,6 +303,7 @@ func (p AR1) Sensitivities(s Settings) (*Chain, *Sensitivity, error) {
 		Matched: make([]int, n), Certificates: make([]Certificate, n)}
 	keep := &rowMultipliers{}
 	maxentRowsKeep(nodes, logW, law, L, s.Matching, c.Transition, c.Matched, c.Certificates, keep)
+	c.PriorKL = scalarPriorKL(nodes, logW, law, c.Transition)
 
 	const P = 3
 	dNodes, dMean, dSD := make([][]float64, P), make([][]float64, P), make([][]float64, P)

@@ -114,6 +114,7 @@ func (p SV) Discretize(level, vol Settings) (*Chain, error) {
 	levelRows := make([][]float64, nh)
 	levelMatched := make([][]int, nh)
 	levelCerts := make([][]Certificate, nh)
+	levelKL := make([][]float64, nh)
 	for k := 0; k < nh; k++ {
 		law := conditional{Mean: make([]float64, ny), SD: make([]float64, ny)}
 		sd := math.Exp(volChain.Grid[k] / 2)
@@ -126,6 +127,7 @@ func (p SV) Discretize(level, vol Settings) (*Chain, error) {
 		levelCerts[k] = make([]Certificate, ny)
 		if level.Method == MaxEnt {
 			maxentRows(nodes, logW, law, L, level.Matching, levelRows[k], levelMatched[k], levelCerts[k])
+			levelKL[k] = scalarPriorKL(nodes, logW, law, levelRows[k])
 		} else {
 			tauchenRows(nodes, nodes[1]-nodes[0], law, levelRows[k])
 		}
@@ -133,6 +135,9 @@ func (p SV) Discretize(level, vol Settings) (*Chain, error) {
 	n := ny * nh
 	c := &Chain{Dim: 2, Grid: make([]float64, 2*n), Transition: make([]float64, n*n), Matched: make([]int, n),
 		Method: level.Method, Moments: min(L, volChain.Moments)}
+	if level.Method == MaxEnt && volChain.PriorKL != nil {
+		c.PriorKL = make([]float64, n)
+	}
 	for i := 0; i < ny; i++ {
 		for k := 0; k < nh; k++ {
 			s := i*nh + k
@@ -143,6 +148,11 @@ func (p SV) Discretize(level, vol Settings) (*Chain, error) {
 					c.Certificates = make([]Certificate, n)
 				}
 				c.Certificates[s] = combineCerts(levelCerts[k][i], volChain.Certificate(k))
+			}
+			if c.PriorKL != nil {
+				// The row is the product of the level's and the volatility's
+				// rows, and so is its prior: the divergences add.
+				c.PriorKL[s] = levelKL[k][i] + volChain.PriorKL[k]
 			}
 			row := c.Row(s)
 			py := levelRows[k][i*ny : (i+1)*ny]

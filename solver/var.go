@@ -229,6 +229,7 @@ func (p VAR) maxent(s Settings, L int) *Chain {
 	c := &Chain{Dim: d, Grid: grid, Method: MaxEnt, Moments: L,
 		Transition: make([]float64, n*n), Matched: make([]int, n), Certificates: make([]Certificate, n)}
 	maxentVectorRows(grid, logWeights, law, L, s.Matching, c.Transition, c.Matched, c.Certificates)
+	c.PriorKL = vectorPriorKL(grid, logWeights, law, c.Transition)
 	return c
 }
 

@@ -15,10 +15,12 @@ type VectorStateCheck struct {
 	Matched int       `json:"matched"`
 	// Certificate says why Matched moments were matched.
 	Certificate Certificate `json:"certificate"`
-	MeanErr     []float64   `json:"mean_std_error"`
-	CovErr      []float64   `json:"cov_std_error"`
-	SkewErr     []float64   `json:"skewness_error"`
-	KurtErr     []float64   `json:"kurtosis_std_error"`
+	// PriorKL is the row's divergence from its prior (StateCheck.PriorKL).
+	PriorKL *float64  `json:"prior_kl,omitempty"`
+	MeanErr []float64 `json:"mean_std_error"`
+	CovErr  []float64 `json:"cov_std_error"`
+	SkewErr []float64 `json:"skewness_error"`
+	KurtErr []float64 `json:"kurtosis_std_error"`
 }
 
 // VectorDiagnostics compares a vector chain with the process it
@@ -81,6 +83,7 @@ func DiagnoseVector(c *Chain, truth VectorTruth) VectorDiagnostics {
 			sc.Matched = c.Matched[i]
 			sc.Certificate = c.Certificate(i)
 		}
+		sc.PriorKL, _ = rowDiagnostics(c, i)
 		for k := 0; k < d; k++ {
 			diff[k] = cm.Mean[k] - tm.Mean[k]
 		}

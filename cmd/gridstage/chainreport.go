@@ -3,6 +3,7 @@ package main
 import (
 	"fmt"
 	"io"
+	"strconv"
 	"strings"
 	"text/tabwriter"
 
@@ -135,17 +136,18 @@ func (r chainReport) printText(w io.Writer) error {
 			r.Kind, c.Method, n, c.Moments, n-c.Fallbacks(), n)
 	}
 	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)
-	fmt.Fprintln(tw, "state\tlevel\tstationary\tmatched\tmean err\tvar err\tskew err\tkurt err\t")
+	fmt.Fprintln(tw, "state\tlevel\tstationary\tmatched\tmean err\tvar err\tskew err\tkurt err\tprior KL\tstranded\t")
 	for i, s := range d.States {
 		pi := "-"
 		if d.Stationary != nil {
 			pi = fmt.Sprintf("%.4g", d.Stationary[i])
 		}
-		fmt.Fprintf(tw, "%d\t%.6g\t%s\t%d\t%s\t%s\t%s\t%s\t\n", i, s.Level[0], pi, s.Matched,
-			sci(s.RelErr.Mean), sci(s.RelErr.Var), sci(s.RelErr.Skew), sci(s.RelErr.Kurt))
+		fmt.Fprintf(tw, "%d\t%.6g\t%s\t%d\t%s\t%s\t%s\t%s\t%s\t%s\t\n", i, s.Level[0], pi, s.Matched,
+			sci(s.RelErr.Mean), sci(s.RelErr.Var), sci(s.RelErr.Skew), sci(s.RelErr.Kurt), optionalSci(s.PriorKL), strandedText(s.Shape))
 	}
 	tw.Flush()
-	fmt.Fprintln(w, "(errors in standardized units: mean/sd, var/var, skewness, kurtosis/kurtosis)")
+	fmt.Fprintln(w, "(errors in standardized units: mean/sd, var/var, skewness, kurtosis/kurtosis; prior KL: the row's\n"+
+		" Kullback-Leibler divergence from its prior weights; stranded: probability beyond a valley of the row)")
 
 	fmt.Fprintf(w, "\ntransition matrix (row = from, column = to)\n")
 	for i := 0; i < n; i++ {
@@ -199,6 +201,9 @@ func (r chainReport) printText(w io.Writer) error {
 	if d.Degenerate != "" {
 		fmt.Fprintln(w, "\nwarning: degenerate chain: "+d.Degenerate)
 	}
+	if msg := shapeWarning(d); msg != "" {
+		fmt.Fprintln(w, "\nwarning: "+msg)
+	}
 	if k := c.Fallbacks(); k > 0 {
 		fmt.Fprintf(w, "\nwarning: %d state(s) could not match all %d moments (proven infeasible on this grid there); see the matched column\n", k, c.Moments)
 		if r.Advice != "" {
@@ -209,6 +214,44 @@ func (r chainReport) printText(w io.Writer) error {
 		r.Provenance.printText(w)
 	}
 	return nil
+}
+
+// optionalSci formats an optional number, "-" when absent.
+func optionalSci(v *float64) string {
+	if v == nil {
+		return "-"
+	}
+	return sci(*v)
+}
+
+// strandedText formats a row's stranded mass, with a '!' when the row is
+// far from unimodal.
+func strandedText(s *solver.RowShape) string {
+	switch {
+	case s == nil:
+		return "-"
+	case s.FarFromUnimodal:
+		return sci(s.StrandedMass) + "!"
+	}
+	return sci(s.StrandedMass)
+}
+
+// shapeWarning names the states whose rows are far from unimodal, or
+// returns "".
+func shapeWarning(d solver.Diagnostics) string {
+	var states []string
+	worst := 0.0
+	for i, s := range d.States {
+		if s.Shape != nil && s.Shape.FarFromUnimodal {
+			states = append(states, strconv.Itoa(i))
+			worst = max(worst, s.Shape.StrandedMass)
+		}
+	}
+	if len(states) == 0 {
+		return ""
+	}
+	return fmt.Sprintf("%d row(s) far from unimodal (states %s): up to %.3g of the probability lies beyond a valley, a point "+
+		"below %g times a probability farther out; marked ! in the stranded column", len(states), strings.Join(states, ", "), worst, solver.ValleyRatio)
 }
 
 // sci formats an error compactly.

@@ -46,6 +46,9 @@ with - for _):
 			}
 			c := sol.Chain
 			out := &solver.Discrete{Nodes: c.Grid, Weights: c.Row(0), Moments: c.Moments, Matched: c.Matched[0]}
+			if c.PriorKL != nil {
+				out.PriorKL = c.PriorKL[0]
+			}
 			return printIID(cmd.OutOrStdout(), law, out, solver.IID{Dist: d}, prov, advice, ms.json)
 		},
 	}
@@ -146,18 +149,23 @@ type iidDiag struct {
 	Matched  int            `json:"matched"`
 	Discrete solver.Moments `json:"discrete"`
 	True     solver.Moments `json:"true"`
+	// PriorKL is the weights' Kullback-Leibler divergence from the node
+	// rule's prior; Shape how far they are from unimodal.
+	PriorKL float64         `json:"prior_kl"`
+	Shape   solver.RowShape `json:"shape"`
 }
 
 func printIID(w io.Writer, law map[string]any, d *solver.Discrete, p solver.IID, prov provenance, advice string, asJSON bool) error {
 	got := solver.WeightedMoments(d.Weights, d.Nodes)
 	truth := p.Conditional(nil)
+	shape := solver.Shape(d.Weights, d.Nodes)
 	if asJSON {
 		grid := make([][]float64, len(d.Nodes))
 		for i, x := range d.Nodes {
 			grid[i] = []float64{x}
 		}
 		return finitejson.Encode(w, iidJSON{Kind: "iid", Distribution: law, Grid: grid, Weights: d.Weights, Moments: d.Moments,
-			Diagnostics: iidDiag{Matched: d.Matched, Discrete: got, True: truth}, Advice: advice, provenance: prov})
+			Diagnostics: iidDiag{Matched: d.Matched, Discrete: got, True: truth, PriorKL: d.PriorKL, Shape: shape}, Advice: advice, provenance: prov})
 	}
 	if d.Moments == 0 {
 		fmt.Fprintf(w, "%s distribution, %d points, no moment matched: the weights are the node rule's own times the density, normalised\n\n", law["law"], len(d.Nodes))
@@ -180,6 +188,11 @@ func printIID(w io.Writer, law map[string]any, d *solver.Discrete, p solver.IID,
 		fmt.Fprintf(tw, "%s\t%.8g\t%.8g\t%s\t\n", r.name, r.t, r.g, sci(r.g-r.t))
 	}
 	tw.Flush()
+	fmt.Fprintf(w, "\nKullback-Leibler divergence of the weights from the node rule's prior: %.4g\n", d.PriorKL)
+	if shape.FarFromUnimodal {
+		fmt.Fprintf(w, "\nwarning: the weights are far from unimodal: %.3g of the probability lies beyond a valley, a point below %g times a weight farther out\n",
+			shape.StrandedMass, solver.ValleyRatio)
+	}
 	if d.Matched < d.Moments {
 		fmt.Fprintf(w, "\nwarning: only %d of %d moments could be matched on this grid (proven infeasible there)\n", d.Matched, d.Moments)
 		if advice != "" {

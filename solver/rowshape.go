@@ -1,0 +1,89 @@
+package solver
+
+import "sort"
+
+// ValleyRatio and StrandedFlag define when a row is far from unimodal
+// (see RowShape and the package documentation).
+const (
+	// ValleyRatio: a point is a valley when its probability is below
+	// ValleyRatio times the largest probability beyond it (farther from
+	// the row's mode on the same side).
+	ValleyRatio = 0.1
+	// StrandedFlag: a row is flagged when at least this much probability
+	// lies beyond a valley. 1e-8 is the floor at which issue 10's
+	// linear-programming check counts a probability as present; it lies
+	// far above the rounding of a row (1e-16 relative), and it catches the
+	// rows of examples/wage-risk.yaml that jump twelve or more states with
+	// probability 1e-7 behind probabilities of 1e-40.
+	StrandedFlag = 1e-8
+)
+
+// RowShape describes how far one transition row is from unimodal.
+type RowShape struct {
+	// StrandedMass is the probability beyond the innermost valley on each
+	// side of the row's mode, summed over both sides: the mass a modeller
+	// would not expect, cut off from the bulk by near-zero probabilities.
+	// 0 for a unimodal row.
+	StrandedMass float64 `json:"stranded_mass"`
+	// FarFromUnimodal is StrandedMass ≥ StrandedFlag.
+	FarFromUnimodal bool `json:"far_from_unimodal"`
+}
+
+// Shape returns the shape of the probability row p over the scalar levels
+// x (any order; p and x are not modified). Sorted by level, with m the
+// mode (the first largest probability), a point j on one side of m is a
+// valley when
+//
+//	p_j < ValleyRatio · max{p_k : k beyond j on the same side},
+//
+// and every point beyond the innermost valley of its side is stranded.
+// A unimodal row (probabilities never rising going outward from the
+// mode) has no valley; a row with two separated peaks strands the lower
+// one, and a row with mass far out behind near-zero probabilities
+// strands that mass.
+func Shape(p, x []float64) RowShape {
+	n := len(p)
+	order := make([]int, n)
+	for j := range order {
+		order[j] = j
+	}
+	sort.SliceStable(order, func(a, b int) bool { return x[order[a]] < x[order[b]] })
+	q := make([]float64, n)
+	for k, j := range order {
+		q[k] = p[j]
+	}
+	mode := 0
+	for k, v := range q {
+		if v > q[mode] {
+			mode = k
+		}
+	}
+	stranded := strandedSide(q[mode+1:])
+	left := make([]float64, mode)
+	for k := range left {
+		left[k] = q[mode-1-k]
+	}
+	stranded += strandedSide(left)
+	return RowShape{StrandedMass: stranded, FarFromUnimodal: stranded >= StrandedFlag}
+}
+
+// strandedSide returns the mass beyond the innermost valley of one side
+// of a row, side[0] being the point next to the mode.
+func strandedSide(side []float64) float64 {
+	n := len(side)
+	// beyond[k] = max of side[k+1:], built from the outside in.
+	beyond := make([]float64, n+1)
+	for k := n - 1; k >= 0; k-- {
+		beyond[k] = max(beyond[k+1], side[k])
+	}
+	for k := 0; k < n; k++ {
+		if side[k] < ValleyRatio*beyond[k+1] {
+			var s float64
+			for _, v := range side[k+1:] {
+				s += v
+			}
+			return s
+		}
+	}
+	return 0
+}
