@@ -7,6 +7,7 @@ import (
 	"text/tabwriter"
 
 	"gridstage/internal/finitejson"
+	"gridstage/internal/plural"
 	"gridstage/solver"
 )
 
@@ -200,7 +201,7 @@ func (r chainReport) printText(w io.Writer) error {
 		fmt.Fprintln(w, "\nwarning: degenerate chain: "+d.Degenerate)
 	}
 	if k := c.Fallbacks(); k > 0 {
-		fmt.Fprintf(w, "\nwarning: %d state(s) could not match all %d moments (proven infeasible on this grid there); see the matched column\n", k, c.Moments)
+		fmt.Fprintf(w, "\nwarning: %s could not match all %d moments (proven infeasible on this grid there); see the matched column\n", plural.Count(k, "state", "states"), c.Moments)
 		if r.Advice != "" {
 			fmt.Fprintln(w, "advice: "+r.Advice)
 		}

@@ -9,6 +9,7 @@ import (
 	"gonum.org/v1/plot/vg"
 	"gonum.org/v1/plot/vg/draw"
 
+	"gridstage/internal/plural"
 	"gridstage/solver"
 )
 
@@ -121,9 +122,9 @@ func momentsFigure(c Case, m MomentErrors) Figure {
 	case main.Requested == 0:
 		sub = main.Method + " targets no conditional moment exactly"
 	case k > 0:
-		sub = fmt.Sprintf("%s asked to match %d moment(s) · %d of %d states fell back to fewer", main.Method, main.Requested, k, len(main.X))
+		sub = fmt.Sprintf("%s asked to match %s · %d of %d states fell back to fewer", main.Method, plural.Count(main.Requested, "moment", "moments"), k, len(main.X))
 	default:
-		sub = fmt.Sprintf("%s asked to match %d moment(s) · every state matched them all", main.Method, main.Requested)
+		sub = fmt.Sprintf("%s asked to match %s · every state matched %s", main.Method, plural.Count(main.Requested, "moment", "moments"), plural.Noun(main.Requested, "it", "them all"))
 	}
 	if len(m.Series) > 1 {
 		sub += " · baseline " + m.Series[1].Method
