@@ -138,7 +138,7 @@ func momentsFigure(c Case, m MomentErrors) Figure {
 	return Figure{
 		Name:    "errors",
 		Title:   "Conditional-moment errors by state",
-		Caption: fmt.Sprintf("Each panel: the error of one conditional moment in every state, in standardized units, on a log scale. Points below the dashed line (%.0e) are matched; points on the floor are exact to rounding. Red squares mark states that could not match every requested moment.", MatchTolerance),
+		Caption: errorsCaption(m),
 		Width:   18 * vg.Centimeter, Height: 14 * vg.Centimeter,
 		draw: func(dc draw.Canvas) {
 			body := drawHeader(dc, "Conditional-moment errors · "+c.Label, sub)
@@ -162,6 +162,21 @@ func momentsFigure(c Case, m MomentErrors) Figure {
 			}
 		},
 	}
+}
+
+// errorsCaption says what the error figure draws, in the marks and
+// colours it uses: blue circles for the chain, orange triangles for the
+// baseline, vermilion squares for states that fell back (errorPanel).
+func errorsCaption(m MomentErrors) string {
+	c := fmt.Sprintf("Each panel: the error of one conditional moment in every state, in standardized units, on a log scale; blue circles are the %s chain", m.Series[0].Method)
+	if len(m.Series) > 1 {
+		c += fmt.Sprintf(", orange triangles on a dashed line the %s baseline", m.Series[1].Method)
+	}
+	c += fmt.Sprintf(". Points below the grey dashed line (%.0e) are matched; points on the floor are exact to rounding.", MatchTolerance)
+	if k := m.Series[0].Fallbacks(); k > 0 {
+		c += fmt.Sprintf(" Vermilion squares mark the %s that could not match every requested moment.", plural.Count(k, "state", "states"))
+	}
+	return c
 }
 
 // panelLabels are the panel titles, naming the standardization.
