@@ -104,7 +104,8 @@ const readBufferBytes = 1 << 16
 
 // openTable opens a table file of either format and checks its metadata
 // and columns. A file not named like gridstage output that cannot be read
-// or lacks gridstage metadata gives a *NotOutputError.
+// or lacks gridstage metadata gives a *NotOutputError; one named like it
+// gives a *DamagedError or a *MetadataError.
 func openTable(path string, mem memory.Allocator) (*tableFile, error) {
 	_, nameTable, nameFormat, named := ParseFileName(path)
 	fi, err := os.Stat(path)
@@ -144,6 +145,12 @@ func openTable(path string, mem memory.Allocator) (*tableFile, error) {
 	}
 	if !hasGridstageKeys(raw) {
 		t.close()
+		if named {
+			// Named as gridstage output but stripped of its metadata: a
+			// writer that keeps only the values (a plain DuckDB COPY, say)
+			// rewrote it. That is a failed check, not a wrong path.
+			return nil, &MetadataError{Path: path, Key: "gridstage.*", Problem: "is missing: the file carries none of gridstage's metadata, so another writer has rewritten it without its key/value metadata and its provenance cannot be checked"}
+		}
 		return nil, &NotOutputError{Path: path, Reason: "it has no gridstage metadata"}
 	}
 	if t.meta, err = parseMeta(path, raw); err != nil {

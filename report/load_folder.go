@@ -120,7 +120,10 @@ func loadSets(path string, refs []formats.SetRef) (Run, error) {
 				if formats.IsNotOutput(err) {
 					return Run{}, badInput(path, "%v", err)
 				}
-				return Run{}, badInput(path, "cannot be read: %v", err)
+				// Gridstage output that fails to read (damaged, or
+				// rewritten by another writer) is a failed check, not bad
+				// input: the command exits 1.
+				return Run{}, fmt.Errorf("%s: cannot be read: %w", path, err)
 			}
 			b = &jobBuilder{}
 			for _, rec := range set.Records {
@@ -131,7 +134,7 @@ func loadSets(path string, refs []formats.SetRef) (Run, error) {
 		}
 		r, err := formats.Open(ref, nil)
 		if err != nil {
-			return Run{}, badInput(path, "cannot be read: %v", err)
+			return Run{}, fmt.Errorf("%s: cannot be read: %w", path, err)
 		}
 		h := r.Header
 		r.Close()

@@ -150,7 +150,7 @@ func TestLoadFileDamageAndStrangers(t *testing.T) {
 
 	// Change one probability in the last bit of its mantissa: the
 	// content hash no longer matches, so verification fails and the page
-	// must say so (or the set cannot be read at all, an input error).
+	// must say so (or the set cannot be read at all, a failed check).
 	r, err = Load(dir)
 	if err != nil {
 		t.Fatal(err)
@@ -173,17 +173,16 @@ func TestLoadFileDamageAndStrangers(t *testing.T) {
 	raw[i] ^= 0x01
 	os.WriteFile(path, raw, 0o644)
 	r, err = Load(dir)
-	var ie *InputError
 	switch {
-	case errors.As(err, &ie):
+	case errors.As(err, new(*InputError)):
+		t.Fatalf("a damaged set is a failed check (exit 1), not bad input: %v", err)
+	case err != nil:
 		// Unreadable: the reader's own chain-hash check caught it; the
-		// command exits 2 naming the file and the mismatch.
+		// command exits 1 naming the file and the mismatch.
 		if !strings.Contains(err.Error(), "earnings-th") {
 			t.Errorf("the error does not name the damaged set: %v", err)
 		}
 		t.Logf("damaged set refused: %v", err)
-	case err != nil:
-		t.Fatalf("damaged set: %v", err)
 	default:
 		var html bytes.Buffer
 		if err := Write(&html, r, Options{MaxFigureChains: 1}); err != nil {

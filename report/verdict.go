@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"math"
 
+	"gridstage/internal/plural"
 	"gridstage/report/figures"
 	"gridstage/solver"
 )
@@ -90,8 +91,8 @@ func assess(c figures.Case, age bool) Verdict {
 			k, c.Chain.States(), c.Chain.Moments, least)
 	}
 	if k, worst, moment := falseMatches(d); k > 0 {
-		v.flag(Unfit, "In %d state(s) a moment recorded as matched is off by up to %.2g (standardized, %s), above the tolerance %.0e.",
-			k, worst, moment, figures.MatchTolerance)
+		v.flag(Unfit, "In %s a moment recorded as matched is off by up to %.2g (standardized, %s), above the tolerance %.0e.",
+			plural.Count(k, "state", "states"), worst, moment, figures.MatchTolerance)
 	}
 	if d.StationaryErr == "" && d.True.SD > 0 && !age {
 		rel := d.Chain.SD/d.True.SD - 1

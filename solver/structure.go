@@ -38,7 +38,10 @@ func (s Structure) Degenerate() string {
 	case s.ClosedClasses > 1:
 		return fmt.Sprintf("reducible: %d closed classes of states that never reach one another, so the stationary distribution is not unique", s.ClosedClasses)
 	}
-	return fmt.Sprintf("reducible: %d transient state(s) are left for good; the stationary distribution is unique but zero there", s.Transient)
+	if s.Transient == 1 {
+		return "reducible: 1 transient state is left for good; the stationary distribution is unique but zero there"
+	}
+	return fmt.Sprintf("reducible: %d transient states are left for good; the stationary distribution is unique but zero there", s.Transient)
 }
 
 // Classify finds the communicating classes of the n×n row-stochastic

@@ -74,7 +74,7 @@ processes:
 	if code != 0 {
 		t.Fatalf("exit %d: %s", code, errOut)
 	}
-	for _, want := range []string{"warning: in 2 of 2 jobs", "earnings: 2 job(s); most at point 0 (sigma=0.1), 9 of 9 states fell back",
+	for _, want := range []string{"warning: in 2 of 2 jobs", "earnings: 2 jobs; most at point 0 (sigma=0.1), 9 of 9 states fell back",
 		"advice for that job: 68 states (lattice nodes, width √(N−1))"} {
 		if !strings.Contains(stdout, want) {
 			t.Errorf("run summary lacks %q:\n%s", want, stdout)

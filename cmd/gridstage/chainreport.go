@@ -8,6 +8,7 @@ import (
 	"text/tabwriter"
 
 	"gridstage/internal/finitejson"
+	"gridstage/internal/plural"
 	"gridstage/solver"
 )
 
@@ -205,7 +206,7 @@ func (r chainReport) printText(w io.Writer) error {
 		fmt.Fprintln(w, "\nwarning: "+msg)
 	}
 	if k := c.Fallbacks(); k > 0 {
-		fmt.Fprintf(w, "\nwarning: %d state(s) could not match all %d moments (proven infeasible on this grid there); see the matched column\n", k, c.Moments)
+		fmt.Fprintf(w, "\nwarning: %s could not match all %d moments (proven infeasible on this grid there); see the matched column\n", plural.Count(k, "state", "states"), c.Moments)
 		if r.Advice != "" {
 			fmt.Fprintln(w, "advice: "+r.Advice)
 		}

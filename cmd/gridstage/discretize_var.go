@@ -10,6 +10,7 @@ import (
 	"github.com/spf13/cobra"
 
 	"gridstage/internal/finitejson"
+	"gridstage/internal/plural"
 	"gridstage/solver"
 )
 
@@ -347,7 +348,7 @@ func (r varReport) printText(w io.Writer) error {
 		fmt.Fprintln(w, "\nwarning: "+dg.StationaryErr)
 	}
 	if k := c.Fallbacks(); k > 0 {
-		fmt.Fprintf(w, "\nwarning: %d state(s) could not match the full moment set (proven infeasible on this grid there); see the matched column\n", k)
+		fmt.Fprintf(w, "\nwarning: %s could not match the full moment set (proven infeasible on this grid there); see the matched column\n", plural.Count(k, "state", "states"))
 		if r.Advice != "" {
 			fmt.Fprintln(w, "advice: "+r.Advice)
 		}

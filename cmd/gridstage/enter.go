@@ -11,6 +11,7 @@ import (
 
 	"github.com/spf13/cobra"
 
+	"gridstage/internal/plural"
 	"gridstage/pipeline"
 	"gridstage/pipeline/lineage"
 	"gridstage/plugin"
@@ -87,8 +88,8 @@ then answer for it. Values must be finite numbers.`,
 			if err != nil {
 				return &exitCodeError{code: exitFailure, err: err}
 			}
-			fmt.Fprintf(cmd.OutOrStdout(), "estimate %s by %s %s entered into %s (%d chain(s))\nfile %s\n",
-				w.ID, w.Stage, w.StageVersion, ledger, len(w.ChainHashes), filepath.ToSlash(w.Path))
+			fmt.Fprintf(cmd.OutOrStdout(), "estimate %s by %s %s entered into %s (%s)\nfile %s\n",
+				w.ID, w.Stage, w.StageVersion, ledger, plural.Count(len(w.ChainHashes), "chain", "chains"), filepath.ToSlash(w.Path))
 			return nil
 		},
 	}

@@ -8,6 +8,7 @@ import (
 	"text/tabwriter"
 
 	"gridstage/formats"
+	"gridstage/internal/plural"
 	"gridstage/solver"
 )
 
@@ -163,7 +164,7 @@ func printVectorRecord(w io.Writer, kind string, rec *formats.Record, lifeCycle 
 		fmt.Fprintln(w, "\nwarning: "+rec.Diag.StationaryErr)
 	}
 	if k := c.Fallbacks(); k > 0 {
-		fmt.Fprintf(w, "\nwarning: %d state(s) could not match the full moment set (the grid cannot carry it there); see the matched column\n", k)
+		fmt.Fprintf(w, "\nwarning: %s could not match the full moment set (the grid cannot carry it there); see the matched column\n", plural.Count(k, "state", "states"))
 	}
 	return nil
 }

@@ -7,10 +7,12 @@ import (
 	"errors"
 	"fmt"
 	"io"
+	"log/slog"
 	"os"
 
 	"github.com/spf13/cobra"
 
+	"gridstage/internal/logging"
 	"gridstage/internal/version"
 )
 
@@ -68,16 +70,39 @@ func execute(args []string, stdout, stderr io.Writer) int {
 	if err == nil {
 		return exitOK
 	}
-	fmt.Fprintln(stderr, "gridstage: "+err.Error())
+	code := exitFailure
 	var ue *usageError
-	if errors.As(err, &ue) || isCobraUsage(err) {
-		return exitUsage
-	}
 	var ec *exitCodeError
-	if errors.As(err, &ec) {
-		return ec.code
+	switch {
+	case errors.As(err, &ue) || isCobraUsage(err):
+		code = exitUsage
+	case errors.As(err, &ec):
+		code = ec.code
 	}
-	return exitFailure
+	if jsonLogRequested(args) {
+		log, _ := logging.New(stderr, "json", slog.LevelInfo)
+		log.Error(err.Error(), "exit_status", code)
+		return code
+	}
+	fmt.Fprintln(stderr, "gridstage: "+err.Error())
+	return code
+}
+
+// jsonLogRequested reports whether the command line asks for JSON logs
+// (--log-format json), so that even an error found before the command
+// reads its flags reaches stderr as a JSON line.
+func jsonLogRequested(args []string) bool {
+	for i, a := range args {
+		switch {
+		case a == "--":
+			return false
+		case a == "--log-format=json":
+			return true
+		case a == "--log-format" && i+1 < len(args) && args[i+1] == "json":
+			return true
+		}
+	}
+	return false
 }
 
 // exitCodeError carries an explicit exit status.

@@ -8,6 +8,7 @@ import (
 
 	"gridstage/batch/merge"
 	"gridstage/formats"
+	"gridstage/internal/plural"
 )
 
 func init() { extraCommands = append(extraCommands, newMergeCmd) }
@@ -40,11 +41,11 @@ reading, so a damaged shard file stops the merge.`,
 				return err
 			}
 			w := cmd.OutOrStdout()
-			fmt.Fprintf(w, "merged %d shards (%d jobs) into %s\n", res.Shards, res.Jobs, out)
+			fmt.Fprintf(w, "merged %s (%s) into %s\n", plural.Count(res.Shards, "shard", "shards"), plural.Count(res.Jobs, "job", "jobs"), out)
 			for _, s := range res.Sets {
 				for _, f := range s.Files {
 					if f.Table == formats.TablePoints {
-						fmt.Fprintf(w, "  %s  (%d points)\n", f.Path, f.Rows)
+						fmt.Fprintf(w, "  %s  (%s)\n", f.Path, plural.Count(int(f.Rows), "point", "points"))
 					}
 				}
 			}

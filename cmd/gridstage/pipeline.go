@@ -16,6 +16,7 @@ import (
 
 	"github.com/spf13/cobra"
 
+	"gridstage/internal/plural"
 	"gridstage/pipeline"
 	"gridstage/plugin"
 )
@@ -80,7 +81,7 @@ the stage protocol; each call to a stage is limited by the timeout.`,
 }
 
 func printPipeline(w io.Writer, s *pipeline.Spec, res *pipeline.Result) {
-	fmt.Fprintf(w, "pipeline %s: %d chains, %d estimates\n", s.Name, len(res.Chains), len(res.Estimates))
+	fmt.Fprintf(w, "pipeline %s: %s, %s\n", s.Name, plural.Count(len(res.Chains), "chain", "chains"), plural.Count(len(res.Estimates), "estimate", "estimates"))
 	fmt.Fprintln(w, "chains:")
 	for _, c := range res.Chains {
 		fmt.Fprintf(w, "  %-16s point %-3d chain %s  spec %s\n", c.Process, c.Point, abbrev(c.ChainHash), abbrev(c.SpecHash))

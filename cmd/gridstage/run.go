@@ -21,6 +21,7 @@ import (
 	"gridstage/batch/shard"
 	"gridstage/formats"
 	"gridstage/internal/logging"
+	"gridstage/internal/plural"
 	"gridstage/internal/progress"
 	"gridstage/manifests"
 )
@@ -90,6 +91,9 @@ On a Slurm array job the share of jobs is taken from the array variables;
 			if opt.Shard.Count == 0 {
 				total = len(m.Jobs)
 			}
+			if logFormat == "json" {
+				total = 0 // no bar: every line on stderr is JSON
+			}
 			bar := progress.New(total, stderr, "solving")
 			defer bar.Close()
 			log, err := logging.New(bar.Writer(), logFormat, slog.LevelInfo)
@@ -110,7 +114,13 @@ On a Slurm array job the share of jobs is taken from the array variables;
 			start := time.Now()
 			res, err := batch.Run(ctx, m, opt)
 			bar.Close()
-			if res != nil {
+			switch {
+			case res != nil && logFormat == "json":
+				logRunWarnings(log, res)
+				if err := printRunSummaryJSON(cmd.OutOrStdout(), m, res, time.Since(start)); err != nil {
+					return err
+				}
+			case res != nil:
 				printRunSummary(cmd.OutOrStdout(), m, res, time.Since(start))
 			}
 			var folderErr *batch.OutputFolderError
@@ -129,7 +139,7 @@ On a Slurm array job the share of jobs is taken from the array variables;
 	fs.IntVar(&workers, "workers", 0, "cores to use: jobs solved at once, with the output written on the same cores (default: every core)")
 	fs.StringVar(&cacheDir, "cache", "", "cache folder, or off (default: $GRIDSTAGE_CACHE, else the user cache folder)")
 	fs.StringVar(&shardFlag, "shard", "", "run share I of N of the jobs, as I/N (default: from Slurm array variables, else all)")
-	fs.StringVar(&logFormat, "log-format", "text", "log format: text or json")
+	fs.StringVar(&logFormat, "log-format", "text", "log format: text, or json for JSON lines on stderr (errors included) and the summary as one JSON object on stdout")
 	fs.BoolVar(&force, "force", false, "rewrite the output even when run.json says it is up to date")
 	return cmd
 }
@@ -163,29 +173,29 @@ func paramText(ps []manifests.Param) string {
 func printRunSummary(w io.Writer, m *manifests.Manifest, r *batch.Result, took time.Duration) {
 	jobs := r.Jobs
 	if r.UpToDate {
-		fmt.Fprintf(w, "run %q: %d jobs, output in %s is up to date (same manifest hash and tool version, every file's bytes as recorded); --force rewrites it\n",
-			m.Run, jobs, r.Dir)
+		fmt.Fprintf(w, "run %q: %s, output in %s is up to date (same manifest hash and tool version, every file's bytes as recorded); --force rewrites it\n",
+			m.Run, plural.Count(jobs, "job", "jobs"), r.Dir)
 		return
 	}
 	if r.Stale != "" {
 		fmt.Fprintf(w, "note: the output already in %s was not intact (%s); solving again\n", r.Dir, r.Stale)
 	}
-	fmt.Fprintf(w, "run %q: %d jobs (%d solved, %d from cache, %d failed) in %s, shard %s\n",
-		m.Run, jobs, r.Solved, r.Cached, r.Failed, took.Round(time.Millisecond), r.Record.Shard)
+	fmt.Fprintf(w, "run %q: %s (%d solved, %d from cache, %d failed) in %s, shard %s\n",
+		m.Run, plural.Count(jobs, "job", "jobs"), r.Solved, r.Cached, r.Failed, took.Round(time.Millisecond), r.Record.Shard)
 	switch {
 	case r.ShortJobs > 0:
-		fmt.Fprintf(w, "warning: in %d of %d jobs states holding at least 0.1%% of the stationary mass matched fewer moments than requested (proven infeasible there on those grids); `gridstage report` shows which\n", r.ShortJobs, jobs)
+		fmt.Fprintf(w, "warning: in %d of %d %s, states holding at least 0.1%% of the stationary mass matched fewer moments than requested (proven infeasible there on those grids); `gridstage report` shows which\n", r.ShortJobs, jobs, plural.Noun(jobs, "job", "jobs"))
 		for _, a := range r.Advice {
-			fmt.Fprintf(w, "  %s: %d job(s); most at point %d%s, %d of %d states fell back\n    advice for that job: %s\n",
-				a.Process, a.Jobs, a.Worst.Point, paramText(a.Worst.Params), a.Fallbacks, a.States, a.Text)
+			fmt.Fprintf(w, "  %s: %s; most at point %d%s, %d of %d states fell back\n    advice for that job: %s\n",
+				a.Process, plural.Count(a.Jobs, "job", "jobs"), a.Worst.Point, paramText(a.Worst.Params), a.Fallbacks, a.States, a.Text)
 		}
 	case r.FallbackJobs > 0 && !r.UpToDate:
-		fmt.Fprintf(w, "note: in %d of %d jobs some states matched fewer moments than requested (proven infeasible there), each holding less than 0.1%% of the stationary mass: the grids carry the moments wherever the chains spend their time\n", r.FallbackJobs, jobs)
+		fmt.Fprintf(w, "note: in %d of %d %s, some states matched fewer moments than requested (proven infeasible there), each holding less than 0.1%% of the stationary mass: the grids carry the moments wherever the chains spend their time\n", r.FallbackJobs, jobs, plural.Noun(jobs, "job", "jobs"))
 	}
 	for _, s := range r.Sets {
 		for _, f := range s.Files {
 			if f.Table == formats.TablePoints {
-				fmt.Fprintf(w, "  %s  (%d points)\n", f.Path, f.Rows)
+				fmt.Fprintf(w, "  %s  (%s)\n", f.Path, plural.Count(int(f.Rows), "point", "points"))
 			}
 		}
 	}

@@ -10,6 +10,7 @@ import (
 
 	"gridstage/batch/cache"
 	"gridstage/batch/slurm"
+	"gridstage/internal/plural"
 	"gridstage/manifests"
 )
 
@@ -60,7 +61,8 @@ a resubmitted task solves nothing twice and the merge job finds the shards.`,
 				return badInput("--cpus-per-task %d is out of range: want 1 or more", p.CPUsPerTask)
 			}
 			if p.Tasks > len(m.Jobs) {
-				fmt.Fprintf(cmd.ErrOrStderr(), "gridstage: %d tasks for %d jobs: using %d tasks\n", p.Tasks, len(m.Jobs), len(m.Jobs))
+				fmt.Fprintf(cmd.ErrOrStderr(), "gridstage: %s for %s: using %s\n", plural.Count(p.Tasks, "task", "tasks"),
+					plural.Count(len(m.Jobs), "job", "jobs"), plural.Count(len(m.Jobs), "task", "tasks"))
 				p.Tasks = len(m.Jobs)
 			}
 			if binary == "" {
@@ -89,7 +91,7 @@ a resubmitted task solves nothing twice and the merge job finds the shards.`,
 				return badInput("%v", err)
 			}
 			w := cmd.OutOrStdout()
-			fmt.Fprintf(w, "wrote Slurm scripts for run %q: %d jobs in %d array tasks\n", m.Run, len(m.Jobs), p.Tasks)
+			fmt.Fprintf(w, "wrote Slurm scripts for run %q: %s in %s\n", m.Run, plural.Count(len(m.Jobs), "job", "jobs"), plural.Count(p.Tasks, "array task", "array tasks"))
 			for _, path := range paths {
 				fmt.Fprintf(w, "  %s\n", path)
 			}

@@ -8,6 +8,7 @@ import (
 
 	"gridstage/batch"
 	"gridstage/formats"
+	"gridstage/internal/plural"
 )
 
 func init() { extraCommands = append(extraCommands, newVerifyCmd) }
@@ -35,8 +36,10 @@ func newVerifyCmd() *cobra.Command {
     finding of its own; --values-only skips the byte digests, for files
     re-encoded on purpose by another writer.
 
-Exit status 0 if everything checks, 1 naming the first mismatch (file,
-point, row), 2 if PATH is not gridstage output.`,
+Exit status 0 if everything checks; 1 naming the first mismatch (file,
+point, row), including a file named as gridstage output that another
+writer rewrote; 2 if PATH does not exist or is not gridstage output at all
+(a file named otherwise, a folder holding no gridstage files).`,
 		Args: cobra.ExactArgs(1),
 		RunE: func(cmd *cobra.Command, args []string) error {
 			rep, err := batch.Verify(args[0], batch.VerifyOptions{ValuesOnly: valuesOnly})
@@ -63,7 +66,7 @@ point, row), 2 if PATH is not gridstage output.`,
 			}
 			switch {
 			case rep.Sets > 0:
-				fmt.Fprintf(out, "%d file(s) in %d set(s) verified against %s%s\n", len(rep.Files), rep.Sets, batch.RecordFile, bytesNote)
+				fmt.Fprintf(out, "%s in %s verified against %s%s\n", plural.Count(len(rep.Files), "file", "files"), plural.Count(rep.Sets, "set", "sets"), batch.RecordFile, bytesNote)
 			default:
 				fmt.Fprintf(out, "%d file verified (on its own: verify the folder to check it against its set)%s\n", len(rep.Files), bytesNote)
 			}

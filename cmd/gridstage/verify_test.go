@@ -47,7 +47,7 @@ func writeOutput(t *testing.T, f formats.Format) string {
 
 func TestVerifyCommand(t *testing.T) {
 	dir := writeOutput(t, formats.Parquet)
-	if code, out, errOut := run(t, "verify", dir); code != 0 || !strings.Contains(out, "6 file(s) in 1 set(s) verified") {
+	if code, out, errOut := run(t, "verify", dir); code != 0 || !strings.Contains(out, "6 files in 1 set verified") {
 		t.Fatalf("verify of a good folder: exit %d\n%s%s", code, out, errOut)
 	}
 	if code, _, errOut := run(t, "verify", filepath.Join(dir, "missing")); code != 2 {

@@ -66,7 +66,7 @@ func AgeMassOf(l LifeCycle) (AgeMass, error) {
 		want++
 	}
 	if T == 0 || len(l.Ages) != want {
-		return AgeMass{}, fmt.Errorf("figures: life cycle has %d chains, %d final grid(s) and %d ages; want one age per grid", T, want-T, len(l.Ages))
+		return AgeMass{}, fmt.Errorf("figures: life cycle has %d chains and %d final grids besides them, and %d ages; want one age per grid", T, want-T, len(l.Ages))
 	}
 	n, dim := l.Chains[0].States(), l.Chains[0].Dim
 	if l.Final != nil && len(l.Final) != n*dim {

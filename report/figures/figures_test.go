@@ -218,6 +218,19 @@ func TestMomentErrorsArePlottedAsDiagnosed(t *testing.T) {
 	if _, ok := MomentErrorsOf(Case{Chain: c}); ok {
 		t.Error("errors figure without diagnostics")
 	}
+	// The caption names the marks and colours errorPanel draws, and the
+	// fallback squares only when states fell back.
+	caption := momentsFigure(Case{Chain: c}, m).Caption
+	for _, want := range []string{"blue circles are the maxent chain", "orange triangles on a dashed line the rouwenhorst baseline",
+		fmt.Sprintf("Vermilion squares mark the %d states", c.Fallbacks())} {
+		if !strings.Contains(caption, want) {
+			t.Errorf("caption lacks %q: %s", want, caption)
+		}
+	}
+	m.Series = m.Series[1:]
+	if caption := momentsFigure(Case{Chain: b}, m).Caption; strings.Contains(caption, "squares") || strings.Contains(caption, "triangles") || strings.Contains(caption, "red") {
+		t.Errorf("caption of a chain alone with no fallback: %s", caption)
+	}
 }
 
 // The vector case is a sheared product of Rouwenhorst chains, whose

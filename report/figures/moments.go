@@ -9,6 +9,7 @@ import (
 	"gonum.org/v1/plot/vg"
 	"gonum.org/v1/plot/vg/draw"
 
+	"gridstage/internal/plural"
 	"gridstage/solver"
 )
 
@@ -121,9 +122,9 @@ func momentsFigure(c Case, m MomentErrors) Figure {
 	case main.Requested == 0:
 		sub = main.Method + " targets no conditional moment exactly"
 	case k > 0:
-		sub = fmt.Sprintf("%s asked to match %d moment(s) · %d of %d states fell back to fewer", main.Method, main.Requested, k, len(main.X))
+		sub = fmt.Sprintf("%s asked to match %s · %d of %d states fell back to fewer", main.Method, plural.Count(main.Requested, "moment", "moments"), k, len(main.X))
 	default:
-		sub = fmt.Sprintf("%s asked to match %d moment(s) · every state matched them all", main.Method, main.Requested)
+		sub = fmt.Sprintf("%s asked to match %s · every state matched %s", main.Method, plural.Count(main.Requested, "moment", "moments"), plural.Noun(main.Requested, "it", "them all"))
 	}
 	if len(m.Series) > 1 {
 		sub += " · baseline " + m.Series[1].Method
@@ -137,7 +138,7 @@ func momentsFigure(c Case, m MomentErrors) Figure {
 	return Figure{
 		Name:    "errors",
 		Title:   "Conditional-moment errors by state",
-		Caption: fmt.Sprintf("Each panel: the error of one conditional moment in every state, in standardized units, on a log scale. Points below the dashed line (%.0e) are matched; points on the floor are exact to rounding. Red squares mark states that could not match every requested moment.", MatchTolerance),
+		Caption: errorsCaption(m),
 		Width:   18 * vg.Centimeter, Height: 14 * vg.Centimeter,
 		draw: func(dc draw.Canvas) {
 			body := drawHeader(dc, "Conditional-moment errors · "+c.Label, sub)
@@ -161,6 +162,21 @@ func momentsFigure(c Case, m MomentErrors) Figure {
 			}
 		},
 	}
+}
+
+// errorsCaption says what the error figure draws, in the marks and
+// colours it uses: blue circles for the chain, orange triangles for the
+// baseline, vermilion squares for states that fell back (errorPanel).
+func errorsCaption(m MomentErrors) string {
+	c := fmt.Sprintf("Each panel: the error of one conditional moment in every state, in standardized units, on a log scale; blue circles are the %s chain", m.Series[0].Method)
+	if len(m.Series) > 1 {
+		c += fmt.Sprintf(", orange triangles on a dashed line the %s baseline", m.Series[1].Method)
+	}
+	c += fmt.Sprintf(". Points below the grey dashed line (%.0e) are matched; points on the floor are exact to rounding.", MatchTolerance)
+	if k := m.Series[0].Fallbacks(); k > 0 {
+		c += fmt.Sprintf(" Vermilion squares mark the %s that could not match every requested moment.", plural.Count(k, "state", "states"))
+	}
+	return c
 }
 
 // panelLabels are the panel titles, naming the standardization.
