@@ -20,19 +20,28 @@ func appendBaseline(t *tableWriter, r *Record) error {
 	return appendMatrix(t, r, r.BaselineTransition, len(r.Baseline.States))
 }
 
-// appendMatrix writes an n×n row-major matrix in long form.
+// appendMatrix writes an n×n row-major matrix in long form. It appends
+// runs of rows at once, each ending where the table's batch fills, so the
+// batches are those of one endRow per row.
 func appendMatrix(t *tableWriter, r *Record, m []float64, n int) error {
 	point, age, from, to, prob := t.i32(0), t.i32(1), t.i32(2), t.i32(3), t.f64(4)
-	for i := 0; i < n; i++ {
-		for j, p := range m[i*n : (i+1)*n] {
-			point.Append(int32(r.Point))
-			age.Append(int32(r.Age))
-			from.Append(int32(i))
-			to.Append(int32(j))
-			prob.Append(p)
-			if err := t.endRow(); err != nil {
-				return err
-			}
+	for done := 0; done < n*n; {
+		k := min(n*n-done, max(t.limit-point.Len(), 1))
+		point.Reserve(k)
+		age.Reserve(k)
+		from.Reserve(k)
+		to.Reserve(k)
+		prob.Reserve(k)
+		for e := done; e < done+k; e++ {
+			point.UnsafeAppend(int32(r.Point))
+			age.UnsafeAppend(int32(r.Age))
+			from.UnsafeAppend(int32(e / n))
+			to.UnsafeAppend(int32(e % n))
+		}
+		prob.AppendValues(m[done:done+k], nil)
+		done += k
+		if err := t.endRows(k); err != nil {
+			return err
 		}
 	}
 	return nil

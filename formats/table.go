@@ -86,8 +86,12 @@ func (t *tableWriter) boolean(col int) *array.BooleanBuilder {
 }
 
 // endRow counts a completed row and hands over a full batch.
-func (t *tableWriter) endRow() error {
-	t.rows++
+func (t *tableWriter) endRow() error { return t.endRows(1) }
+
+// endRows counts k completed rows and hands over a full batch; the rows
+// must not overfill it (k ≤ the room left, or 1).
+func (t *tableWriter) endRows(k int) error {
+	t.rows += int64(k)
 	if t.b.Field(0).Len() >= t.limit {
 		return t.flush()
 	}

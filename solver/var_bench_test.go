@@ -50,3 +50,12 @@ func BenchmarkLifeCycleMixture15(b *testing.B) {
 	p := lifeDemo(true)
 	benchLoop(b, func() error { _, err := p.Discretize(Settings{States: 15}); return err })
 }
+
+// Tauchen-type VAR chains of the sizes above, the baselines of issue 15's
+// ratio targets (BenchmarkVersusTauchen measures the ratios in one run).
+func BenchmarkVAR2DModerateTauchen9(b *testing.B) {
+	benchVAR(b, varModerate, Settings{States: 9, Method: Tauchen})
+}
+func BenchmarkVAR3DTauchen7(b *testing.B) {
+	benchVAR(b, varThree, Settings{States: 7, Method: Tauchen})
+}

@@ -30,7 +30,15 @@ const (
 	metaKind    = "gridstage.kind"
 	metaVersion = "gridstage.ledger_version"
 	kindLedger  = "lineage-ledger"
-	createdBy   = "gridstage lineage ledger " + LedgerVersion
+	// createdBy names the layout and the encoding: encoding 2 writes no
+	// dictionaries. With them, a ledger past about 15,000 rows fell back
+	// to plain pages part way through a column, and the Parquet library
+	// lists the two page encodings of such a column in map order, so the
+	// same rows did not always give the same bytes and the reader's
+	// byte-for-byte check refused the ledger it had just written. Ledgers
+	// written before (created_by without the encoding) get the structural
+	// checks of other writers' files.
+	createdBy = "gridstage lineage ledger " + LedgerVersion + " encoding 2"
 )
 
 // columns lists the ledger's columns in order.
@@ -196,7 +204,8 @@ func write(w io.Writer, recs []Record) error {
 	}
 	rec := b.NewRecordBatch()
 	defer rec.Release()
-	props := parquet.NewWriterProperties(parquet.WithCreatedBy(createdBy), parquet.WithCompression(compress.Codecs.Zstd))
+	props := parquet.NewWriterProperties(parquet.WithCreatedBy(createdBy), parquet.WithCompression(compress.Codecs.Zstd),
+		parquet.WithDictionaryDefault(false))
 	fw, err := pqarrow.NewFileWriter(sc, nopCloser{w}, props, pqarrow.DefaultWriterProps())
 	if err != nil {
 		return err
