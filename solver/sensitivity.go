@@ -166,6 +166,13 @@ func scalarRowSens(nodes []float64, law conditional, L int, trans []float64, kee
 			}
 			out := dTrans[t][i*n : (i+1)*n]
 			for j := range z {
+				// A zero probability stays zero: its derivative is +0,
+				// not the −0 the product would give (JSON and most
+				// readers print both as 0, which would hide a sign bit).
+				if row[j] == 0 {
+					out[j] = 0
+					continue
+				}
 				out[j] = row[j] * (abar[j] - ebar)
 			}
 		}
