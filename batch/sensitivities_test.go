@@ -10,7 +10,7 @@ import (
 )
 
 // sensitivityManifest sweeps a smooth AR(1) and asks for its derivatives,
-// beside a process that does not.
+// beside a process that does not and a 2-D VAR that does.
 const sensitivityManifest = `run: sens-test
 processes:
   - name: persistent
@@ -29,6 +29,12 @@ processes:
     rho: 0.8
     sigma: 0.1
     states: 5
+  - name: pair
+    kind: var
+    coef: [[0.7, 0.1], [0.05, 0.6]]
+    cov: [[0.02, 0.004], [0.004, 0.01]]
+    states: 3
+    sensitivities: true
 `
 
 // TestRunSensitivitiesDeterministic: the sensitivities table is written
@@ -57,13 +63,13 @@ func TestRunSensitivitiesDeterministic(t *testing.T) {
 		rep, err := Verify(opt.Out, VerifyOptions{})
 		if err != nil {
 			t.Errorf("run %d: verify against run.json: %v", k, err)
-		} else if len(rep.Files) != 13 {
-			t.Errorf("run %d: verify checked %d files, want 13 (7 + 6)", k, len(rep.Files))
+		} else if len(rep.Files) != 20 {
+			t.Errorf("run %d: verify checked %d files, want 20 (7 + 6 + 7)", k, len(rep.Files))
 		}
 		outputs = append(outputs, readAll(t, opt.Out))
 	}
-	if len(outputs[0]) != 14 || outputs[0]["persistent.sensitivities.parquet"] == nil || outputs[0]["plain.sensitivities.parquet"] != nil {
-		t.Errorf("%d files written; want 14, with a sensitivities table for persistent only", len(outputs[0]))
+	if len(outputs[0]) != 21 || outputs[0]["persistent.sensitivities.parquet"] == nil || outputs[0]["pair.sensitivities.parquet"] == nil || outputs[0]["plain.sensitivities.parquet"] != nil {
+		t.Errorf("%d files written; want 21, with a sensitivities table for persistent and pair only", len(outputs[0]))
 	}
 	for k := 1; k < len(outputs); k++ {
 		for name, b := range outputs[0] {

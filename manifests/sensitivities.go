@@ -7,7 +7,7 @@ import (
 )
 
 // differentiable says, for each kind whose chains have parameter
-// sensitivities (solver.AR1.Sensitivities), which of its settings allow
+// sensitivities (solver.AR1.Sensitivities, solver.VAR.Sensitivities), which of its settings allow
 // them: the reason they do not, or "".
 var differentiable = map[string]func(p *processSpec) string{
 	"ar1": func(p *processSpec) string {
@@ -17,6 +17,11 @@ var differentiable = map[string]func(p *processSpec) string{
 		}
 		return ""
 	},
+	// VAR.Sensitivities: every intercept, coef and cov entry. Principal
+	// axes at a repeated eigenvalue of the stationary covariance have no
+	// derivative; that is found when the chain is built, and the job
+	// fails saying so.
+	"var": func(*processSpec) string { return "" },
 }
 
 // checkSensitivities reports a process asking for sensitivities its chains

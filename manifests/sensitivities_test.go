@@ -43,8 +43,10 @@ func TestSensitivitiesSwitch(t *testing.T) {
 	}
 
 	for _, tc := range []struct{ body, want string }{
-		{"    kind: var\n    coef: [[0.9, 0], [0, 0.8]]\n    cov: [[0.01, 0], [0, 0.01]]\n    sensitivities: true\n",
-			"s.yaml:7:20: processes[0].sensitivities: kind var has no parameter sensitivities in this version: want kind ar1"},
+		{"    kind: iid\n    distribution: {law: lognormal, log_mean: 0, log_sd: 0.2}\n    sensitivities: true\n",
+			"s.yaml:6:20: processes[0].sensitivities: kind iid has no parameter sensitivities in this version: want kind ar1, var"},
+		{"    kind: var\n    coef: [[0.9, 0], [0, 0.8]]\n    cov: [[0.01, 0], [0, 0.01]]\n    method: tauchen\n    sensitivities: true\n",
+			"processes[0].sensitivities: method tauchen has no parameter sensitivities"},
 		{ar1 + "    method: tauchen\n    sensitivities: true\n", "processes[0].sensitivities: method tauchen has no parameter sensitivities"},
 		{ar1 + "    innovation: {law: laplace}\n    sensitivities: true\n", "processes[0].sensitivities: the innovation is laplace"},
 		{ar1 + "    sensitivities: 1\n", "processes[0].sensitivities: the value is"},
@@ -53,6 +55,13 @@ func TestSensitivitiesSwitch(t *testing.T) {
 		if err == nil || !strings.Contains(err.Error(), tc.want) {
 			t.Errorf("%q: error %v, want it to contain %q", tc.body, err, tc.want)
 		}
+	}
+	v, err := parse("    kind: var\n    coef: [[0.9, 0.1], [0, 0.8]]\n    cov: [[0.01, 0.002], [0.002, 0.01]]\n    states: 3\n    sensitivities: true\n")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if sens, err := v.Jobs[0].Sensitivities(mustSolve(t, v.Jobs[0])); err != nil || len(sens.Params) != 9 || sens.Params[3] != "coef[0][1]" {
+		t.Errorf("VAR Job.Sensitivities: %v, %v; want 9 parameters named as the manifest's sweep names them (coef[0][1])", sens, err)
 	}
 	if _, err := ParseSpec([]byte(`{"kind":"ar1","rho":0.9,"sigma":0.1,"sensitivities":true}`)); err == nil || !strings.Contains(err.Error(), "sensitivities") {
 		t.Errorf("a canonical spec with sensitivities: %v, want the key refused", err)
