@@ -19,6 +19,7 @@ import (
 	"gridstage/formats"
 	"gridstage/internal/version"
 	"gridstage/manifests"
+	"gridstage/solver"
 )
 
 // Options choose how a manifest is run. The zero value runs every job on
@@ -98,6 +99,10 @@ type solved struct {
 	sol    manifests.Solution
 	spec   []byte // the job's canonical spec, rebuilt on the worker
 	cached bool
+	// sens are the chain's parameter derivatives, when its process asks
+	// for them (computed on the worker, never cached: they follow from
+	// the spec).
+	sens *solver.Sensitivity
 }
 
 // Run solves the manifest's jobs (those of opt.Shard) and writes one output
@@ -172,6 +177,21 @@ func Run(ctx context.Context, m *manifests.Manifest, opt Options) (*Result, erro
 	}
 
 	var cachedCount atomic.Int64
+	withSens := map[string]bool{}
+	for _, p := range m.Processes {
+		withSens[p.Name] = p.Sensitivities
+	}
+	// differentiate attaches the derivatives a process asks for.
+	differentiate := func(job manifests.Job, v solved) (solved, error) {
+		if !withSens[job.Process] {
+			return v, nil
+		}
+		var err error
+		if v.sens, err = job.Sensitivities(v.sol.Chain); err != nil {
+			return solved{}, fmt.Errorf("sensitivities: %w", err)
+		}
+		return v, nil
+	}
 	work := func(ctx context.Context, k int) (solved, error) {
 		if err := ctx.Err(); err != nil {
 			return solved{}, err
@@ -189,7 +209,7 @@ func Run(ctx context.Context, m *manifests.Manifest, opt Options) (*Result, erro
 			}
 			if hit {
 				cachedCount.Add(1)
-				return solved{sol: sol, spec: spec, cached: true}, nil
+				return differentiate(job, solved{sol: sol, spec: spec, cached: true})
 			}
 		}
 		prob, err := job.Build()
@@ -205,7 +225,7 @@ func Run(ctx context.Context, m *manifests.Manifest, opt Options) (*Result, erro
 				log.Warn("could not store in cache", "process", job.Process, "point", job.Point, "error", err)
 			}
 		}
-		return solved{sol: sol, spec: spec}, nil
+		return differentiate(job, solved{sol: sol, spec: spec})
 	}
 
 	sets := newSetWriter(m, dir, format)
@@ -243,7 +263,7 @@ func Run(ctx context.Context, m *manifests.Manifest, opt Options) (*Result, erro
 			log.Debug("states fell back to fewer moments", "process", job.Process, "point", job.Point,
 				"states", rec.Fallbacks, "of", v.sol.States())
 		}
-		hash, err := sets.append(job, v.sol, v.spec)
+		hash, err := sets.append(job, v.sol, v.spec, v.sens)
 		if err != nil {
 			return err
 		}

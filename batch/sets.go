@@ -31,14 +31,14 @@ func newSetWriter(m *manifests.Manifest, dir string, f formats.Format) *setWrite
 
 // append writes one solved job, whose canonical spec is spec, and returns
 // its chain hash.
-func (s *setWriter) append(job manifests.Job, sol manifests.Solution, spec []byte) (string, error) {
+func (s *setWriter) append(job manifests.Job, sol manifests.Solution, spec []byte, sens *solver.Sensitivity) (string, error) {
 	if s.failed[job.Process] {
 		return "", nil
 	}
 	w := s.open[job.Process]
 	if w == nil {
 		h := formats.Header{Run: s.m.Run, Process: job.Process, Kind: job.Kind, Method: sol.Method().String(),
-			Dim: sol.Dim(), Params: sweptNames(s.m, job.Process), ManifestHash: s.m.Hash}
+			Dim: sol.Dim(), Params: sweptNames(s.m, job.Process), ManifestHash: s.m.Hash, Sensitivities: wantsSensitivities(s.m, job.Process)}
 		var err error
 		if w, err = formats.Create(s.dir, h, formats.Options{Format: s.format, BatchRows: s.rows, NoPointList: !s.list}); err != nil {
 			return "", fmt.Errorf("batch: %s: %w", job.Process, err)
@@ -46,7 +46,11 @@ func (s *setWriter) append(job manifests.Job, sol manifests.Solution, spec []byt
 		s.open[job.Process] = w
 		s.order = append(s.order, job.Process)
 	}
-	for _, r := range records(job, sol, spec) {
+	recs := records(job, sol, spec)
+	if sens != nil {
+		recs[0].Sensitivities = sens // a time-invariant chain: one record
+	}
+	for _, r := range recs {
 		if err := w.Append(r); err != nil {
 			return "", fmt.Errorf("batch: %s point %d: %w", job.Process, job.Point, err)
 		}
@@ -146,4 +150,13 @@ func sweptNames(m *manifests.Manifest, process string) []string {
 		}
 	}
 	return nil
+}
+
+func wantsSensitivities(m *manifests.Manifest, process string) bool {
+	for _, p := range m.Processes {
+		if p.Name == process {
+			return p.Sensitivities
+		}
+	}
+	return false
 }

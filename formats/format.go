@@ -51,11 +51,36 @@ const (
 	TableStates      = "states"
 	TableDiagnostics = "diagnostics"
 	TableSummary     = "summary"
+	// TableSensitivities holds the chains' parameter derivatives; a set
+	// has it only when its Header asks (Header.Sensitivities).
+	TableSensitivities = "sensitivities"
 )
 
-// Tables lists every table of a Set. The points table is last because it is
-// renamed into place last and records its siblings' content hashes.
+// Tables lists every table every Set has. The points table is last because
+// it is renamed into place last and records its siblings' content hashes.
 var Tables = []string{TableTransitions, TableStates, TableDiagnostics, TableSummary, TableBaseline, TablePoints}
+
+// tablesOf returns the tables of a set with header h, in writing order:
+// Tables, with the sensitivities table before the points table when h
+// asks for it.
+func tablesOf(h Header) []string {
+	if !h.Sensitivities {
+		return Tables
+	}
+	n := len(Tables)
+	out := append(append([]string(nil), Tables[:n-1]...), TableSensitivities)
+	return append(out, Tables[n-1])
+}
+
+// knownTable reports whether name is a table some set may have.
+func knownTable(name string) bool {
+	for _, t := range Tables {
+		if t == name {
+			return true
+		}
+	}
+	return name == TableSensitivities
+}
 
 // FileName returns the name of a set's table file: <process>.<table><ext>.
 func FileName(process, table string, f Format) string {
@@ -80,10 +105,8 @@ func ParseFileName(path string) (process, table string, f Format, ok bool) {
 		return "", "", 0, false
 	}
 	process, table = stem[:dot], stem[dot+1:]
-	for _, t := range Tables {
-		if t == table && checkName(process) == nil {
-			return process, table, f, true
-		}
+	if knownTable(table) && checkName(process) == nil {
+		return process, table, f, true
 	}
 	return "", "", 0, false
 }

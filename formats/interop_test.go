@@ -47,6 +47,7 @@ type interopFile struct {
 	ContentHash      string            `json:"contentHash"`
 	TransitionRows   int               `json:"transitionRows"`
 	WorstRowSumError float64           `json:"worstRowSumError"`
+	DerivativeSums   int               `json:"derivativeSums"`
 }
 
 // TestInteropDuckDBArrow writes a sweep of AR(1) chains (ρ = 0.9, 0.5,
@@ -59,7 +60,8 @@ type interopFile struct {
 // encoding in docs/HASHES.md. Here the metadata and row counts the
 // readers report must equal what the writer produced, and the transition
 // matrix DuckDB loads with the README's query must equal the solver's bit
-// for bit (a float64 passes through Parquet, DuckDB and JSON unchanged).
+// for bit (a float64 passes through Parquet, DuckDB and JSON unchanged),
+// and so must a derivative dP/dρ read from the sensitivities table alone.
 func TestInteropDuckDBArrow(t *testing.T) {
 	node, script := interopScript(t)
 	set := &Set{Header: Header{Run: "interop", Process: "wages", Kind: "ar1", Method: "maxent", Dim: 1, Params: []string{"rho"}}}
@@ -75,7 +77,8 @@ func TestInteropDuckDBArrow(t *testing.T) {
 	dir := t.TempDir()
 	want := map[string]File{}
 	var args []string
-	for _, s := range []*Set{set, lifeCycleSet(t), vectorSet(t)} {
+	sens := sensitivitySet(t)
+	for _, s := range []*Set{set, lifeCycleSet(t), vectorSet(t), sens} {
 		for _, f := range []Format{Parquet, Arrow} {
 			res, err := Write(dir, s, Options{Format: f})
 			if err != nil {
@@ -109,6 +112,32 @@ func TestInteropDuckDBArrow(t *testing.T) {
 			if got.TransitionRows == 0 || got.WorstRowSumError > RowSumTolerance {
 				t.Errorf("%s: %d transition rows, worst row-sum error %g", filepath.Base(got.Path), got.TransitionRows, got.WorstRowSumError)
 			}
+		}
+		// 2 points × 3 parameters × (7 transition rows + 1 stationary law).
+		if got.Table == TableSensitivities && got.DerivativeSums != 48 {
+			t.Errorf("%s: the readers summed %d derivative rows, want 48", filepath.Base(got.Path), got.DerivativeSums)
+		}
+	}
+
+	// dP/dρ of point 1 from the sensitivities table, through DuckDB.
+	out, err = exec.Command(node, script, "--derivative", filepath.Join(dir, "earnings.sensitivities.parquet"), "1", "rho").Output()
+	if err != nil {
+		t.Fatalf("derivative query failed: %v\n%s", err, stderrOf(err))
+	}
+	var drows []struct {
+		State       int       `json:"state"`
+		Derivatives []float64 `json:"derivatives"`
+	}
+	if err := json.Unmarshal(out, &drows); err != nil {
+		t.Fatalf("derivative query printed %s: %v", out, err)
+	}
+	dRho := sens.Records[1].Sensitivities.Transition[1]
+	if len(drows) != 7 {
+		t.Fatalf("DuckDB returned %d derivative rows, want 7", len(drows))
+	}
+	for i, r := range drows {
+		if r.State != i || !sameBits(r.Derivatives, dRho[i*7:(i+1)*7]) {
+			t.Errorf("dP/drho row %d from DuckDB (state %d) %v differs from the solver's %v", i, r.State, r.Derivatives, dRho[i*7:(i+1)*7])
 		}
 	}
 

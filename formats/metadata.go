@@ -53,6 +53,10 @@ const (
 	// sibling table name to its content hash, binding the set's files
 	// together.
 	KeyTableHashes = "gridstage.table_hashes"
+
+	// KeySensitivities is "true" in every file of a set that has the
+	// sensitivities table, and absent otherwise.
+	KeySensitivities = "gridstage.sensitivities"
 )
 
 // requiredKeys are present in every file.
@@ -98,7 +102,7 @@ func baseMeta(h Header, points int, specDigest string) map[string]string {
 	if h.Params == nil {
 		params = []byte("[]")
 	}
-	return map[string]string{
+	m := map[string]string{
 		KeyFormatVersion: FormatVersion,
 		KeyTool:          h.Tool,
 		KeyNumeric:       h.Numeric,
@@ -112,6 +116,10 @@ func baseMeta(h Header, points int, specDigest string) map[string]string {
 		KeyPoints:        strconv.Itoa(points),
 		KeySpecDigest:    specDigest,
 	}
+	if h.Sensitivities {
+		m[KeySensitivities] = "true"
+	}
+	return m
 }
 
 // MetadataError reports missing or malformed metadata in a file.
@@ -146,11 +154,7 @@ func parseMeta(path string, raw map[string]string) (*fileMeta, error) {
 		return nil, bad(KeyFormatVersion, fmt.Sprintf("is %q; this gridstage reads format %s", v, FormatVersion))
 	}
 	m := &fileMeta{raw: raw, table: raw[KeyTable]}
-	known := false
-	for _, t := range Tables {
-		known = known || t == m.table
-	}
-	if !known {
+	if !knownTable(m.table) {
 		return nil, bad(KeyTable, fmt.Sprintf("is %q, not a gridstage table", m.table))
 	}
 	h := &m.header
@@ -161,6 +165,13 @@ func parseMeta(path string, raw map[string]string) (*fileMeta, error) {
 			return nil, bad(k, "is empty")
 		}
 	}
+	switch v, ok := raw[KeySensitivities]; {
+	case ok && v != "true":
+		return nil, bad(KeySensitivities, fmt.Sprintf("is %q, want true or no key", v))
+	case !ok && m.table == TableSensitivities:
+		return nil, bad(KeySensitivities, "is missing from a sensitivities table")
+	}
+	h.Sensitivities = raw[KeySensitivities] == "true"
 	var err error
 	if h.Dim, err = strconv.Atoi(raw[KeyDim]); err != nil || h.Dim < 1 {
 		return nil, bad(KeyDim, fmt.Sprintf("is %q, want a positive integer", raw[KeyDim]))
@@ -197,13 +208,17 @@ func parseMeta(path string, raw map[string]string) (*fileMeta, error) {
 		if err := json.Unmarshal([]byte(raw[KeyTableHashes]), &m.tableHashes); err != nil {
 			return nil, bad(KeyTableHashes, "is missing or not a JSON object")
 		}
-		for _, t := range Tables {
+		want := tablesOf(*h)
+		for _, t := range want {
 			if t == TablePoints {
 				continue
 			}
 			if !isHexHash(m.tableHashes[t]) {
 				return nil, bad(KeyTableHashes, fmt.Sprintf("has no SHA-256 for table %s", t))
 			}
+		}
+		if len(m.tableHashes) != len(want)-1 {
+			return nil, bad(KeyTableHashes, fmt.Sprintf("lists %d tables, the set has %d besides the points table", len(m.tableHashes), len(want)-1))
 		}
 	}
 	return m, nil

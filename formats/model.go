@@ -29,6 +29,9 @@ type Header struct {
 	// every spec hash of the set binds (docs/HASHES.md); empty means
 	// internal/version.Numeric. A merge keeps its shards' version.
 	Numeric string
+	// Sensitivities adds the sensitivities table: every record with a
+	// transition matrix must then carry Record.Sensitivities.
+	Sensitivities bool
 }
 
 // Record is one chain of a Set: one sweep point at one age.
@@ -73,6 +76,10 @@ type Record struct {
 	// covariance); BaselineVector likewise for the baseline chain, and
 	// requires Baseline. Nil for univariate processes and terminal ages.
 	Vector, BaselineVector *VectorDiag
+	// Sensitivities are the chain's derivatives with respect to its
+	// process's parameters: required when the Header asks for them (except
+	// at a terminal age), refused otherwise.
+	Sensitivities *solver.Sensitivity
 }
 
 // Set is a whole output in memory: a header and its records in (Point, Age)

@@ -87,6 +87,7 @@ type Reader struct {
 
 	files map[string]*tableFile
 	cur   map[string]*cursor
+	names []string // the set's tables (tablesOf its header)
 
 	// the point in progress
 	point     *pointRow
@@ -104,7 +105,19 @@ func Open(ref SetRef, mem memory.Allocator) (*Reader, error) {
 		mem = memory.DefaultAllocator
 	}
 	r := &Reader{Ref: ref, files: map[string]*tableFile{}, cur: map[string]*cursor{}}
-	for _, t := range Tables {
+	// The points file says which tables the set has.
+	pf, err := openTable(ref.Path(TablePoints), mem)
+	if err != nil {
+		return nil, err
+	}
+	r.files[TablePoints], r.cur[TablePoints] = pf, &cursor{tf: pf}
+	pm := pf.meta
+	r.Header, r.Points, r.SpecDigest = pm.header, pm.points, pm.specDigest
+	r.names = tablesOf(r.Header)
+	for _, t := range r.names {
+		if t == TablePoints {
+			continue
+		}
 		tf, err := openTable(ref.Path(t), mem)
 		if err != nil {
 			r.Close()
@@ -112,9 +125,7 @@ func Open(ref SetRef, mem memory.Allocator) (*Reader, error) {
 		}
 		r.files[t], r.cur[t] = tf, &cursor{tf: tf}
 	}
-	pm := r.files[TablePoints].meta
-	r.Header, r.Points, r.SpecDigest = pm.header, pm.points, pm.specDigest
-	for _, t := range Tables {
+	for _, t := range r.names {
 		m := r.files[t].meta
 		if m.specDigest != pm.specDigest || m.points != pm.points {
 			r.Close()
@@ -182,7 +193,7 @@ func (r *Reader) nextPoint() error {
 		return err
 	}
 	if !ok {
-		for _, t := range Tables {
+		for _, t := range r.names {
 			if more, err := r.cur[t].ok(); err != nil {
 				return err
 			} else if more {
@@ -301,6 +312,13 @@ func (r *Reader) readAge(rec *Record) error {
 			return err
 		}
 		if !inTr && !inSu {
+			if r.Header.Sensitivities {
+				if here, err := r.at(TableSensitivities, point, age); err != nil {
+					return err
+				} else if here {
+					return r.fail(TableSensitivities, r.cur[TableSensitivities], point, age, "has rows for a terminal age (no transition)")
+				}
+			}
 			if c.Method, err = solver.ParseMethod(r.Header.Method); err != nil {
 				return r.fail(TablePoints, nil, point, age, "method %q is not one this gridstage knows", r.Header.Method)
 			}
@@ -445,6 +463,11 @@ func (r *Reader) readAge(rec *Record) error {
 		return r.fail(TableBaseline, r.cur[TableBaseline], point, age, "has more rows for this chain than its %d states fill", len(base.States))
 	}
 	rec.Chain, rec.Diag, rec.Vector = c, *d, vectors[0]
+	if r.Header.Sensitivities {
+		if rec.Sensitivities, err = r.readSensitivities(point, age, n, dim); err != nil {
+			return err
+		}
+	}
 	return nil
 }
 

@@ -23,6 +23,17 @@ const (
 	ColSpec        = "spec"
 	ColAges        = "ages"
 	ColMethod      = "method"
+	ColParameter   = "parameter"
+	ColQuantity    = "quantity"
+	ColCoordinate  = "coordinate"
+	ColDerivative  = "derivative"
+)
+
+// Quantities of the sensitivities table: what a row differentiates.
+const (
+	QuantityGrid       = "grid"       // x_{state, coordinate}
+	QuantityTransition = "transition" // P_{state, to_state}
+	QuantityStationary = "stationary" // π_state
 )
 
 // ParamColumn returns the points-table column holding a swept parameter.
@@ -115,6 +126,10 @@ func schemaFor(table string, dim int, params []string) *arrow.Schema {
 				}
 			}
 		}
+	case TableSensitivities:
+		fs = []arrow.Field{field(ColPoint, i32, false), field(ColAge, i32, false),
+			field(ColParameter, str, false), field(ColQuantity, str, false), field(ColState, i32, false),
+			field(ColTo, i32, true), field(ColCoordinate, i32, true), field(ColDerivative, f64, false)}
 	default:
 		panic("formats: unknown table " + table)
 	}

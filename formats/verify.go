@@ -162,7 +162,11 @@ func verifyFolder(dir string, mem memory.Allocator, rep *Report, opt VerifyOptio
 				return &MismatchError{Path: ref.Path(t), Point: -1, Age: -1, Row: -1, Problem: "is missing from the set" + why}
 			}
 		}
-		if err := verifySet(ref, mem, rep, opt); err != nil {
+		tables := Tables
+		if sets[ref][TableSensitivities] {
+			tables = tablesOf(Header{Sensitivities: true})
+		}
+		if err := verifySet(ref, tables, mem, rep, opt); err != nil {
 			return err
 		}
 		rep.Sets++
@@ -170,7 +174,8 @@ func verifyFolder(dir string, mem memory.Allocator, rep *Report, opt VerifyOptio
 	return nil
 }
 
-func verifySet(ref SetRef, mem memory.Allocator, rep *Report, opt VerifyOptions) error {
+// verifySet checks the set's files: tables lists those found in the folder.
+func verifySet(ref SetRef, tables []string, mem memory.Allocator, rep *Report, opt VerifyOptions) error {
 	// The files are independent until they are compared: check them at
 	// once, then report the first failure in table order.
 	type result struct {
@@ -178,9 +183,9 @@ func verifySet(ref SetRef, mem memory.Allocator, rep *Report, opt VerifyOptions)
 		m   *fileMeta
 		err error
 	}
-	results := make([]result, len(Tables))
+	results := make([]result, len(tables))
 	var wg sync.WaitGroup
-	for i, t := range Tables {
+	for i, t := range tables {
 		wg.Add(1)
 		go func() {
 			defer wg.Done()
@@ -190,7 +195,7 @@ func verifySet(ref SetRef, mem memory.Allocator, rep *Report, opt VerifyOptions)
 	}
 	wg.Wait()
 	metas := map[string]*fileMeta{}
-	for i, t := range Tables {
+	for i, t := range tables {
 		r := results[i]
 		if r.err != nil {
 			return r.err
@@ -199,7 +204,11 @@ func verifySet(ref SetRef, mem memory.Allocator, rep *Report, opt VerifyOptions)
 		metas[t] = r.m
 	}
 	pm := metas[TablePoints]
-	for _, t := range Tables {
+	if pm.header.Sensitivities && metas[TableSensitivities] == nil {
+		return &MismatchError{Path: ref.Path(TableSensitivities), Point: -1, Age: -1, Row: -1,
+			Problem: "is missing from the set (its points file lists a sensitivities table)"}
+	}
+	for _, t := range tables {
 		m := metas[t]
 		path := ref.Path(t)
 		if m.header.Process != ref.Process {

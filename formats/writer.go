@@ -74,6 +74,7 @@ type Writer struct {
 	h      Header
 	mem    memory.Allocator
 	tables map[string]*tableWriter
+	names  []string // the set's tables, in writing order (tablesOf)
 	sinks  []sink
 	specs  *specDigest
 	done   []PointHash
@@ -127,12 +128,12 @@ func Create(dir string, h Header, opt Options) (*Writer, error) {
 	if limit <= 0 {
 		limit = DefaultBatchRows
 	}
-	w := &Writer{dir: dir, h: h, mem: mem, tables: map[string]*tableWriter{}, specs: newSpecDigest()}
+	w := &Writer{dir: dir, h: h, mem: mem, tables: map[string]*tableWriter{}, names: tablesOf(h), specs: newSpecDigest()}
 	w.list = !opt.NoPointList
 	// As many tables encode at once as the process may use cores: more
 	// would not be faster, and each holds a compressor and a row group.
 	slots := make(chan struct{}, runtime.GOMAXPROCS(0))
-	for _, name := range Tables {
+	for _, name := range w.names {
 		schema := schemaFor(name, h.Dim, h.Params)
 		path := filepath.Join(dir, FileName(h.Process, name, opt.Format))
 		var s sink
@@ -203,6 +204,17 @@ func (w *Writer) check(r *Record) error {
 		return bad("matched has %d entries, want %d", len(c.Matched), n)
 	case r.Initial != nil && len(r.Initial) != n:
 		return bad("initial distribution has %d entries, want %d", len(r.Initial), n)
+	case r.Sensitivities != nil && !w.h.Sensitivities:
+		return bad("has sensitivities but the set has no sensitivities table (Header.Sensitivities)")
+	case r.Sensitivities == nil && w.h.Sensitivities && c.Transition != nil:
+		return bad("has no sensitivities but the set's header asks for them")
+	case r.Sensitivities != nil && c.Transition == nil:
+		return bad("a terminal age (no transition) has no sensitivities")
+	}
+	if r.Sensitivities != nil {
+		if err := checkSensitivities(r.Sensitivities, n, c.Dim); err != nil {
+			return bad("sensitivities: %v", err)
+		}
 	}
 	if c.Transition != nil {
 		if err := checkDiag(&r.Diag, n, w.h.Dim); err != nil {
@@ -315,6 +327,8 @@ func (w *Writer) Append(r Record) error {
 	}
 	if w.terminal {
 		steps = steps[2:3]
+	} else if w.h.Sensitivities {
+		steps = append(steps, func() error { return appendSensitivities(w.tables[TableSensitivities], &r, w.h.Dim) })
 	}
 	for _, step := range steps {
 		if err := step(); err != nil {
@@ -405,12 +419,12 @@ func (w *Writer) close() (Result, error) {
 	hashes := map[string]string{}
 	// Hand every table's last batch over first, so that their encoders
 	// finish side by side.
-	for _, name := range Tables {
+	for _, name := range w.names {
 		if err := w.tables[name].flush(); err != nil {
 			return Result{}, err
 		}
 	}
-	for i, name := range Tables {
+	for i, name := range w.names {
 		t := w.tables[name]
 		if err := t.finish(); err != nil {
 			return Result{}, err

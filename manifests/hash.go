@@ -18,10 +18,12 @@ func SpecHash(canonical []byte) string {
 
 // manifestHash is the hex SHA-256 of the manifest's canonical form: the run
 // name, the output format and, per job in order, its process, sweep point
-// and spec hash (docs/HASHES.md). The form is hashed as it is encoded, job
-// by job, never held whole: its keys in canonical (sorted) order are
-// format, jobs, run.
-func manifestHash(run, format string, jobs []Job) string {
+// and spec hash (docs/HASHES.md), and the names of the processes whose
+// sensitivities are written (the key is left out when there are none, so
+// manifests without them keep their hashes). The form is hashed as it is
+// encoded, job by job, never held whole: its keys in canonical (sorted)
+// order are format, jobs, run, sensitivities.
+func manifestHash(run, format string, jobs []Job, sens []string) string {
 	h := sha256.New()
 	var b bytes.Buffer
 	flush := func() {
@@ -42,7 +44,29 @@ func manifestHash(run, format string, jobs []Job) string {
 	}
 	b.WriteString(`],"run":`)
 	writeCanonical(&b, run)
+	if len(sens) > 0 {
+		b.WriteString(`,"sensitivities":[`)
+		for i, s := range sens {
+			if i > 0 {
+				b.WriteByte(',')
+			}
+			writeCanonical(&b, s)
+		}
+		b.WriteByte(']')
+	}
 	b.WriteByte('}')
 	flush()
 	return hex.EncodeToString(h.Sum(nil))
+}
+
+// sensitivityProcesses lists, in manifest order, the processes that write
+// sensitivities.
+func sensitivityProcesses(ps []Process) []string {
+	var out []string
+	for _, p := range ps {
+		if p.Sensitivities {
+			out = append(out, p.Name)
+		}
+	}
+	return out
 }

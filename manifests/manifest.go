@@ -56,6 +56,9 @@ type Process struct {
 	Pos        Pos
 	// Swept lists the swept parameters, sorted; empty without a sweep.
 	Swept []string
+	// Sensitivities asks for the chains' parameter derivatives, written
+	// as a table of their own (the process's sensitivities key).
+	Sensitivities bool
 	// Jobs are the indices of the process's jobs in Manifest.Jobs; job
 	// Jobs[k] is sweep point k.
 	Jobs []int
@@ -253,7 +256,7 @@ func (d *decoder) decodeManifest(root *yaml.Node) *Manifest {
 		if len(jobs) == 0 {
 			continue
 		}
-		proc := Process{Name: p.name.v, Kind: p.kind.v, Pos: p.at.pos}
+		proc := Process{Name: p.name.v, Kind: p.kind.v, Pos: p.at.pos, Sensitivities: p.sensitivities.v}
 		for _, prm := range jobs[0].Params {
 			proc.Swept = append(proc.Swept, prm.Name)
 		}
@@ -267,7 +270,7 @@ func (d *decoder) decodeManifest(root *yaml.Node) *Manifest {
 	if d.r.failed() {
 		return nil
 	}
-	m.Hash = manifestHash(m.Run, m.Output.Format, m.Jobs)
+	m.Hash = manifestHash(m.Run, m.Output.Format, m.Jobs, sensitivityProcesses(m.Processes))
 	return m
 }
 

@@ -47,9 +47,12 @@ type processSpec struct {
 	// the number of states the grid search chose (0 before it ran).
 	auto      toggle
 	statesCap num
-	autoN     int
-	spec      kindSpec // nil when the kind is unknown
-	sweep     *sweepSpec
+	// sensitivities asks for the chains' parameter derivatives as a table
+	// of their own (entries only: an output choice, not part of the spec).
+	sensitivities toggle
+	autoN         int
+	spec          kindSpec // nil when the kind is unknown
+	sweep         *sweepSpec
 
 	// Filled by check.
 	settings solver.Settings
@@ -67,6 +70,7 @@ func (d *decoder) decodeProcess(n *yaml.Node, path string, role processRole) *pr
 	needName := role == roleEntry
 	p := &processSpec{at: d.at(m.node, path), role: role}
 	if needName {
+		p.sensitivities = m.boolean("sensitivities")
 		p.name = m.text("name", nameWant)
 		if !p.name.set && !m.has("name") {
 			m.missing("name", nameWant)
@@ -127,6 +131,9 @@ func (d *decoder) decodeProcess(n *yaml.Node, path string, role processRole) *pr
 		}
 		return ""
 	})
+	if p.sensitivities.v {
+		p.checkSensitivities(d.r)
+	}
 	return p
 }
 

@@ -105,9 +105,13 @@
 // papers, and its chains have been recorded by hash since the first
 // release; MatchSmooth is for estimation, where an optimizer moves the
 // parameters, and must be asked for (matching: smooth). Chains that carry
-// parameter sensitivities (Sensitivities) are exact derivatives of
-// whichever policy built them; under MatchExact they exist only where no
-// state changes level.
+// parameter sensitivities (AR1.Sensitivities in mean, ρ and σ;
+// VAR.Sensitivities in every intercept, coefficient and covariance entry)
+// are exact derivatives of whichever policy built them; under MatchExact
+// they exist only where no state changes level, and on principal axes
+// only where the stationary covariance has distinct eigenvalues. Other
+// kinds (iid laws, stochastic volatility, life cycles, products) have
+// none yet: their manifests are refused naming the field.
 //
 // The classic methods of Tauchen (1986), Tauchen and Hussey (1991) with the
 // Flodén (2008) weighting, Rouwenhorst (1995; Kopecky and Suen 2010) and the

@@ -3,8 +3,6 @@ package solver
 import (
 	"errors"
 	"math"
-
-	"gonum.org/v1/gonum/mat"
 )
 
 // ErrNoSensitivities reports a chain whose parameter derivatives are not
@@ -168,6 +166,13 @@ func scalarRowSens(nodes []float64, law conditional, L int, trans []float64, kee
 			}
 			out := dTrans[t][i*n : (i+1)*n]
 			for j := range z {
+				// A zero probability stays zero: its derivative is +0,
+				// not the −0 the product would give (JSON and most
+				// readers print both as 0, which would hide a sign bit).
+				if row[j] == 0 {
+					out[j] = 0
+					continue
+				}
 				out[j] = row[j] * (abar[j] - ebar)
 			}
 		}
@@ -223,43 +228,6 @@ func regularizeCholesky(h, l []float64, L int) {
 			return
 		}
 	}
-}
-
-// stationarySens returns dπ/dθ_k = π dP_k (I − P + 1π)⁻¹ for every k.
-func stationarySens(trans, pi []float64, dTrans [][]float64) ([][]float64, error) {
-	n := len(pi)
-	a := mat.NewDense(n, n, nil)
-	for i := 0; i < n; i++ {
-		for j := 0; j < n; j++ {
-			v := pi[j] - trans[i*n+j]
-			if i == j {
-				v++
-			}
-			a.Set(j, i, v) // transposed: solve Aᵀ xᵀ = bᵀ
-		}
-	}
-	var lu mat.LU
-	lu.Factorize(a)
-	out := make([][]float64, len(dTrans))
-	b := mat.NewVecDense(n, nil)
-	for k, dp := range dTrans {
-		for j := 0; j < n; j++ {
-			var s float64
-			for i := 0; i < n; i++ {
-				s += float64(pi[i] * dp[i*n+j])
-			}
-			b.SetVec(j, s)
-		}
-		var x mat.VecDense
-		if err := lu.SolveVecTo(&x, false, b); err != nil {
-			return nil, err
-		}
-		out[k] = make([]float64, n)
-		for j := range out[k] {
-			out[k][j] = x.AtVec(j)
-		}
-	}
-	return out, nil
 }
 
 // Sensitivities builds the chain as Discretize does and its derivatives
@@ -327,11 +295,7 @@ func (p AR1) Sensitivities(s Settings) (*Chain, *Sensitivity, error) {
 		sens.Transition[k] = make([]float64, n*n)
 	}
 	scalarRowSens(nodes, law, L, c.Transition, keep, dNodes, dMean, dSD, sens.Transition)
-	pi, err := Stationary(c.Transition, n)
-	if err != nil {
-		return nil, nil, err
-	}
-	if sens.Stationary, err = stationarySens(c.Transition, pi, sens.Transition); err != nil {
+	if _, sens.Stationary, err = stationaryDeriv(c.Transition, n, sens.Transition); err != nil {
 		return nil, nil, err
 	}
 	return c, sens, nil

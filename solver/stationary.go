@@ -59,6 +59,15 @@ func Stationary(trans []float64, n int) ([]float64, error) {
 
 // gth is the elimination itself, for an irreducible chain.
 func gth(trans []float64, n int) ([]float64, error) {
+	pi, _, err := gthReduce(trans, n)
+	return pi, err
+}
+
+// gthReduce is gth that also returns the reduced matrix: row k (columns
+// j < k) holds the censored chain on states 0..k, and column k (rows
+// i < k) the entries a_ik/s_k that eliminated state k, where s_k =
+// Σ_{j<k} a_kj. stationaryDeriv solves other systems x(I − P) = b with it.
+func gthReduce(trans []float64, n int) ([]float64, []float64, error) {
 	a := append([]float64(nil), trans...)
 	for k := n - 1; k >= 1; k-- {
 		var s float64
@@ -66,7 +75,7 @@ func gth(trans []float64, n int) ([]float64, error) {
 			s += a[k*n+j]
 		}
 		if !(s > 0) {
-			return nil, ErrReducible
+			return nil, nil, ErrReducible
 		}
 		for i := 0; i < k; i++ {
 			a[i*n+k] /= s
@@ -95,8 +104,8 @@ func gth(trans []float64, n int) ([]float64, error) {
 	for i := range pi {
 		pi[i] /= total
 		if math.IsNaN(pi[i]) {
-			return nil, ErrReducible
+			return nil, nil, ErrReducible
 		}
 	}
-	return pi, nil
+	return pi, a, nil
 }

@@ -64,6 +64,13 @@ func vectorLadder(L int) []int {
 // even the means are infeasible and the prior row is used). The multipliers
 // of each state warm-start the next.
 func maxentVectorRows(grid, logW []float64, law gaussianVectorLaw, L int, match Matching, trans []float64, matched []int, certs []Certificate) {
+	maxentVectorRowsKeep(grid, logW, law, L, match, trans, matched, certs, nil)
+}
+
+// maxentVectorRowsKeep is maxentVectorRows that also keeps, when keep is
+// not nil, every solved state's multipliers and which states mirror
+// which, for VAR.Sensitivities.
+func maxentVectorRowsKeep(grid, logW []float64, law gaussianVectorLaw, L int, match Matching, trans []float64, matched []int, certs []Certificate, keep *rowMultipliers) {
 	d, n := law.d, len(logW)
 	full := vectorMomentCount(L, d)
 	logq := make([]float64, n)
@@ -94,6 +101,12 @@ func maxentVectorRows(grid, logW []float64, law gaussianVectorLaw, L int, match 
 	from := len(law.means) / d
 	mirror := from == n && vectorMirror(grid, logW, law.means, d)
 	solved := make([]bool, from)
+	if keep != nil {
+		keep.lam, keep.regH, keep.mirror = make([][]float64, from), make([][]float64, from), make([]int, from)
+		for i := range keep.mirror {
+			keep.mirror[i] = -1
+		}
+	}
 	for _, i := range snakeOrder(from, law.axisStates, d) {
 		k := from - 1 - i
 		if mirror && solved[k] {
@@ -103,6 +116,13 @@ func maxentVectorRows(grid, logW []float64, law gaussianVectorLaw, L int, match 
 		sol := policy.solveState(pr, trans[i*n:(i+1)*n])
 		matched[i], certs[i] = sol.Level, sol.Cert
 		solved[i] = true
+		if keep != nil {
+			lam, curv := policy.multipliers()
+			keep.lam[i] = append([]float64(nil), lam...)
+			if curv != nil {
+				keep.regH[i] = append([]float64(nil), curv...)
+			}
+		}
 	}
 	if !mirror {
 		return
@@ -115,6 +135,9 @@ func maxentVectorRows(grid, logW []float64, law gaussianVectorLaw, L int, match 
 		case !solved[i]:
 			mirrorRow(trans[i*n:(i+1)*n], trans[k*n:(k+1)*n])
 			matched[i], certs[i] = matched[k], certs[k]
+			if keep != nil {
+				keep.mirror[i] = k
+			}
 		}
 	}
 }

@@ -6,6 +6,7 @@ import (
 
 	"github.com/spf13/cobra"
 
+	"gridstage/manifests"
 	"gridstage/solver"
 )
 
@@ -134,4 +135,22 @@ func innovation(s *shockFlags) (solver.Distribution, error) {
 // manifest uses.
 func ar1Params(p solver.AR1, s shockFlags) map[string]any {
 	return map[string]any{"rho": p.Rho, "sigma": p.Sigma, "mean": p.Mean, "innovation": s.law()}
+}
+
+// specSensitivities differentiates the chain a discretize command solved,
+// rebuilt from its canonical spec and checked against it bit for bit
+// (manifests.Job.Sensitivities).
+func specSensitivities(spec []byte, solved *solver.Chain) (*solver.Sensitivity, error) {
+	job, err := manifests.ParseSpec(spec)
+	if err != nil {
+		return nil, err
+	}
+	sens, err := job.Sensitivities(solved)
+	if errors.Is(err, solver.ErrNoSensitivities) {
+		return nil, badInput("--sensitivities needs --method maxent")
+	}
+	if errors.Is(err, solver.ErrNotDifferentiable) {
+		return nil, badInput("--sensitivities: %v", err)
+	}
+	return sens, err
 }

@@ -250,6 +250,50 @@ func TestDiscretizeSensitivitiesJSON(t *testing.T) {
 	}
 }
 
+// TestDiscretizeVARSensitivitiesJSON: discretize var --sensitivities adds
+// the derivatives in every intercept, coef and cov entry, named as a
+// manifest sweep names them, and every transition-row derivative sums to
+// zero within 1e-10 (as for ar1 above); principal axes at a repeated
+// eigenvalue are refused with the reason. Their accuracy against finite
+// differences is solver.TestVARSensitivitiesAgainstFiniteDifferences.
+func TestDiscretizeVARSensitivitiesJSON(t *testing.T) {
+	code, out, errOut := run(t, "discretize", "var", "--coef", "0.7,0.1,0.05,0.6", "--cov", "0.02,0.004,0.004,0.01", "--states", "3", "--matching", "smooth", "--sensitivities", "--json")
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, errOut)
+	}
+	var v struct {
+		Sensitivities struct {
+			Params     []string               `json:"params"`
+			Transition map[string][][]float64 `json:"transition"`
+		} `json:"sensitivities"`
+	}
+	if err := json.Unmarshal([]byte(out), &v); err != nil {
+		t.Fatal(err)
+	}
+	if got := strings.Join(v.Sensitivities.Params, ","); got != "intercept[0],intercept[1],coef[0][0],coef[0][1],coef[1][0],coef[1][1],cov[0][0],cov[0][1],cov[1][1]" {
+		t.Fatalf("params = %s", got)
+	}
+	for _, name := range v.Sensitivities.Params {
+		rows := v.Sensitivities.Transition[name]
+		if len(rows) != 9 {
+			t.Fatalf("%s: %d rows, want 9", name, len(rows))
+		}
+		for i, r := range rows {
+			var s float64
+			for _, x := range r {
+				s += x
+			}
+			if math.Abs(s) > 1e-10 {
+				t.Errorf("d row %d / d%s sums to %g", i, name, s)
+			}
+		}
+	}
+	code, _, errOut = run(t, "discretize", "var", "--coef", "0.5,0,0,0.5", "--cov", "0.01,0,0,0.01", "--states", "3", "--sensitivities", "--json")
+	if code != 2 || !strings.Contains(errOut, "repeated eigenvalue") {
+		t.Errorf("principal axes at a repeated eigenvalue: exit %d, %q", code, errOut)
+	}
+}
+
 // TestDiscretizeNoMoments: --moments 0 gives the node rule's own weights
 // and says so.
 func TestDiscretizeNoMoments(t *testing.T) {

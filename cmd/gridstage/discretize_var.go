@@ -29,8 +29,9 @@ type varSettings struct {
 
 func newVARCmd() *cobra.Command {
 	var (
-		vf varFlags
-		vs varSettings
+		vf       varFlags
+		vs       varSettings
+		withSens bool
 	)
 	cmd := &cobra.Command{
 		Use:   "var --coef LIST --cov LIST [--intercept LIST] --states N [flags]",
@@ -67,6 +68,11 @@ VAR construction.`,
 			}
 			out := varReport{Process: p, Settings: s, Chain: sol.Chain, Diag: *sol.Vector,
 				Baseline: sol.Baseline, BaselineDiag: sol.BaselineVector, Provenance: prov, Advice: advice}
+			if withSens {
+				if out.Sensitivities, err = specSensitivities(prov.Spec, sol.Chain); err != nil {
+					return err
+				}
+			}
 			return out.print(cmd.OutOrStdout(), vs.json)
 		},
 	}
@@ -81,6 +87,7 @@ VAR construction.`,
 	fs.Float64Var(&vs.width, "width", 0, "half-width of each axis in stationary s.d. (default sqrt(states-1) for maxent, 3 for tauchen)")
 	fs.StringVar(&vs.compare, "compare", "", "baseline shown beside the chain: maxent, tauchen or none (default tauchen; maxent when --method is tauchen)")
 	fs.BoolVar(&vs.json, "json", false, "print one JSON object instead of tables")
+	fs.BoolVar(&withSens, "sensitivities", false, "add the derivatives of the grid, the transition matrix and the stationary distribution with respect to every intercept, coef and cov entry to the JSON (maxent)")
 	return cmd
 }
 
@@ -205,6 +212,8 @@ type varReport struct {
 	// Advice says what grid would carry the requested moments; empty when
 	// nothing fell back.
 	Advice string
+	// Sensitivities are the chain's parameter derivatives, when asked for.
+	Sensitivities *solver.Sensitivity
 }
 
 // varJSON has the shape of the ar1 output (contract: grid is an array of
@@ -223,6 +232,8 @@ type varJSON struct {
 	Baseline    *varBaselineJSON         `json:"baseline,omitempty"`
 	// Advice says what grid would carry the requested moments.
 	Advice string `json:"advice,omitempty"`
+	// Sensitivities holds the parameter derivatives (--sensitivities).
+	Sensitivities *sensitivityJSON `json:"sensitivities,omitempty"`
 	provenance
 }
 
@@ -237,7 +248,8 @@ func (r varReport) print(w io.Writer, asJSON bool) error {
 	if asJSON {
 		j := varJSON{Kind: "var", Process: varParams(r.Process), Method: r.Chain.Method.String(), Moments: r.Chain.Moments,
 			Grid: gridRows(r.Chain), Transition: transitionRows(r.Chain), Stationary: r.Diag.Stationary,
-			Matched: r.Chain.Matched, Diagnostics: r.Diag, Advice: r.Advice, provenance: r.Provenance}
+			Matched: r.Chain.Matched, Diagnostics: r.Diag, Advice: r.Advice, provenance: r.Provenance,
+			Sensitivities: sensitivityRows(r.Sensitivities, r.Chain)}
 		if r.Chain.Method == solver.MaxEnt {
 			j.Axes = r.Settings.Axes.String()
 		}

@@ -4,11 +4,14 @@
 // each (point, age, from_state) — sums to 1 within 1e-12 and that every
 // probability lies in [0, 1]; for every file, that the gridstage metadata
 // keys are present and that the content hash recomputed from the values
-// (docs/HASHES.md) matches the one in the metadata. It prints one JSON report on stdout and exits 1 on the
-// first failed check.
+// (docs/HASHES.md) matches the one in the metadata. For every sensitivities
+// table it checks that the derivatives of each transition row and of each
+// stationary distribution sum to 0 (both sum to 1 whatever the parameter).
+// It prints one JSON report on stdout and exits 1 on the first failed check.
 //
 // Usage: node check.mjs FILE...   (files ending in .parquet or .arrow)
 //        node check.mjs --matrix FILE POINT AGE   (print one matrix)
+//        node check.mjs --derivative FILE POINT PARAMETER   (print dP/dθ of age 0)
 
 import { createHash } from 'node:crypto';
 import { readFileSync } from 'node:fs';
@@ -21,6 +24,12 @@ import { tableFromIPC } from 'apache-arrow';
 // DuckDB's fsum and the compensated sum below add them with error near
 // 2^-53. 1e-12 is the tolerance gridstage verify uses (RowSumTolerance).
 const TOL = 1e-12;
+
+// Derivative sums: each derivative of a row (or of the stationary law) is
+// computed as p_j (a_j − Σ p a), so its entries cancel to rounding of their
+// magnitudes: |Σ| ≤ 1e-12 (1 + Σ |entry|) leaves a margin of 1e3 over
+// float64 rounding for rows of up to a few hundred entries.
+const DERIV_TOL = 1e-12;
 
 const REQUIRED_KEYS = [
   'gridstage.format_version', 'gridstage.table', 'gridstage.tool_version', 'gridstage.numeric_version', 'gridstage.run',
@@ -124,6 +133,7 @@ async function checkParquet(conn, path) {
   const columns = names.map((name, k) => ({ name, type: duckTypes[types[k].toString()] ?? types[k].toString(), get: (i) => data[k][i] }));
   const report = { path, format: 'parquet', table: meta['gridstage.table'], rows: all.currentRowCount, metadata: meta };
   if (isMatrixTable(report.table)) await checkParquetRows(conn, path, f, report);
+  if (report.table === 'sensitivities') await checkParquetDerivatives(conn, path, f, report);
   // After the row checks, which name the row, not only the file.
   report.contentHash = checkContentHash(path, report.table, report.rows, columns, meta);
   return report;
@@ -140,6 +150,34 @@ async function checkParquetRows(conn, path, f, report) {
     `SELECT point, age, from_state, fsum(probability) AS total, count(*)::INTEGER AS width
      FROM read_parquet(${f}) GROUP BY point, age, from_state ORDER BY point, age, from_state`);
   summarizeRows(path, report, sums.getRowObjectsJson());
+}
+
+// Every derivative of a transition row, and of a stationary distribution,
+// sums to zero: the rows and the distribution sum to one for every value
+// of the parameter.
+async function checkParquetDerivatives(conn, path, f, report) {
+  const sums = await conn.runAndReadAll(
+    `SELECT point, age, parameter, quantity, state, fsum(derivative) AS total, sum(abs(derivative)) AS size
+     FROM read_parquet(${f})
+     WHERE quantity = 'transition'
+     GROUP BY point, age, parameter, quantity, state
+     UNION ALL
+     SELECT point, age, parameter, quantity, -1 AS state, fsum(derivative), sum(abs(derivative))
+     FROM read_parquet(${f})
+     WHERE quantity = 'stationary'
+     GROUP BY point, age, parameter, quantity`);
+  let worst = 0;
+  let n = 0;
+  for (const r of sums.getRowObjectsJson()) {
+    const err = Math.abs(r.total) / (1 + r.size);
+    if (!(err <= DERIV_TOL)) {
+      fail(`${path}: point ${r.point}, age ${r.age}, d/d${r.parameter} of the ${r.quantity} (state ${r.state}) sums to ${r.total}, want 0 within ${DERIV_TOL}·(1 + ${r.size})`);
+    }
+    worst = Math.max(worst, err);
+    n++;
+  }
+  report.derivativeSums = n;
+  report.worstDerivativeSum = worst;
 }
 
 function summarizeRows(path, report, rows) {
@@ -166,6 +204,7 @@ function checkArrow(path) {
     return { name: field.name, type: arrowTypes[String(field.type)] ?? String(field.type), get: (i) => vec.get(i) };
   });
   if (isMatrixTable(report.table)) checkArrowRows(path, table, report);
+  if (report.table === 'sensitivities') checkArrowDerivatives(path, table, report);
   report.contentHash = checkContentHash(path, report.table, report.rows, columns, meta);
   return report;
 }
@@ -193,6 +232,39 @@ function checkArrowRows(path, table, report) {
   summarizeRows(path, report, rows);
 }
 
+function checkArrowDerivatives(path, table, report) {
+  const cols = ['point', 'age', 'parameter', 'quantity', 'state', 'derivative'].map((c) => table.getChild(c));
+  const groups = new Map();
+  for (let i = 0; i < table.numRows; i++) {
+    const [p, a, param, q, s, d] = cols.map((c) => c.get(i));
+    if (q === 'grid') continue;
+    const key = `${p}/${a}/${param}/${q}/${q === 'transition' ? s : -1}`;
+    const g = groups.get(key) ?? { total: 0, comp: 0, size: 0 };
+    const t = g.total + d;
+    g.comp += Math.abs(g.total) >= Math.abs(d) ? (g.total - t) + d : (d - t) + g.total;
+    g.total = t;
+    g.size += Math.abs(d);
+    groups.set(key, g);
+  }
+  let worst = 0;
+  for (const [key, g] of groups) {
+    const err = Math.abs(g.total + g.comp) / (1 + g.size);
+    if (!(err <= DERIV_TOL)) fail(`${path}: ${key}: derivatives sum to ${g.total + g.comp}, want 0 within ${DERIV_TOL}·(1 + ${g.size})`);
+    worst = Math.max(worst, err);
+  }
+  report.derivativeSums = groups.size;
+  report.worstDerivativeSum = worst;
+}
+
+// One derivative dP/dθ of age 0 as rows, from the sensitivities table alone.
+export function derivativeQuery(path, point, parameter) {
+  return `SELECT state, list(derivative ORDER BY to_state) AS derivatives
+FROM read_parquet(${sqlString(path)})
+WHERE point = ${point} AND age = 0 AND parameter = ${sqlString(parameter)} AND quantity = 'transition'
+GROUP BY state
+ORDER BY state`;
+}
+
 // The query the README shows: one transition matrix as rows of
 // probabilities, with the level of each from-state.
 export function matrixQuery(folder, process, point, age) {
@@ -213,6 +285,12 @@ async function main(args) {
     const folder = path.slice(0, path.length - basename(path).length - 1) || '.';
     const process = basename(path).replace(/\.transitions\.parquet$/, '');
     const res = await conn.runAndReadAll(matrixQuery(folder, process, Number(point), Number(age)));
+    console.log(JSON.stringify(res.getRowObjectsJson()));
+    return;
+  }
+  if (args[0] === '--derivative') {
+    const [, path, point, parameter] = args;
+    const res = await conn.runAndReadAll(derivativeQuery(path, Number(point), parameter));
     console.log(JSON.stringify(res.getRowObjectsJson()));
     return;
   }

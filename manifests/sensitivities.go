@@ -1,0 +1,103 @@
+package manifests
+
+import (
+	"fmt"
+
+	"gridstage/solver"
+)
+
+// differentiable says, for each kind whose chains have parameter
+// sensitivities (solver.AR1.Sensitivities, solver.VAR.Sensitivities), which of its settings allow
+// them: the reason they do not, or "".
+var differentiable = map[string]func(p *processSpec) string{
+	"ar1": func(p *processSpec) string {
+		a := p.spec.(*ar1Spec)
+		if fam := a.innovation.fam.name; fam != "normal" && fam != "t" {
+			return fmt.Sprintf("the innovation is %s: sensitivities need a law whose log density has a derivative in closed form here (innovation normal or t)", fam)
+		}
+		return ""
+	},
+	// VAR.Sensitivities: every intercept, coef and cov entry. Principal
+	// axes at a repeated eigenvalue of the stationary covariance have no
+	// derivative; that is found when the chain is built, and the job
+	// fails saying so.
+	"var": func(*processSpec) string { return "" },
+}
+
+// checkSensitivities reports a process asking for sensitivities its chains
+// do not have: its kind, method or innovation law, named with the field.
+func (p *processSpec) checkSensitivities(r *reporter) {
+	if p.spec == nil || p.method.bad {
+		return // the kind or method is wrong, and reported
+	}
+	at := p.sensitivities.at
+	rule, ok := differentiable[p.kind.v]
+	if !ok {
+		r.add(at, ErrRule, "kind %s has no parameter sensitivities in this version: want kind %s, or leave sensitivities out", p.kind.v, sensitivityKinds())
+		return
+	}
+	if m := p.chosenMethod(); m != solver.MaxEnt {
+		r.add(at, ErrRule, "method %s has no parameter sensitivities: they differentiate the maximum-entropy dual (method maxent)", m)
+		return
+	}
+	if why := rule(p); why != "" {
+		r.add(at, ErrRule, "%s", why)
+	}
+}
+
+func sensitivityKinds() string {
+	s := ""
+	for _, k := range kindNames() {
+		if _, ok := differentiable[k]; ok {
+			if s != "" {
+				s += ", "
+			}
+			s += k
+		}
+	}
+	return s
+}
+
+// ErrNoSensitivities reports a job whose chains have no parameter
+// sensitivities (its kind, method or innovation law; see solver).
+var ErrNoSensitivities = solver.ErrNoSensitivities
+
+// differentiableModel is a process model whose chains have parameter
+// sensitivities.
+type differentiableModel interface {
+	Sensitivities(solver.Settings) (*solver.Chain, *solver.Sensitivity, error)
+}
+
+// Sensitivities rebuilds the job's chain with its derivatives with
+// respect to the process's parameters and checks, bit for bit, that the
+// rebuilt chain is chain (the one solved, cached or read from a file): the
+// derivatives then belong to that chain, whatever built it. It returns an
+// error wrapping ErrNoSensitivities for a job whose chains have none.
+func (j Job) Sensitivities(chain *solver.Chain) (*solver.Sensitivity, error) {
+	prob, err := j.Build()
+	if err != nil {
+		return nil, err
+	}
+	m, ok := prob.Model.(differentiableModel)
+	if !ok {
+		return nil, fmt.Errorf("kind %s: %w", j.Kind, ErrNoSensitivities)
+	}
+	c, sens, err := m.Sensitivities(prob.Settings)
+	if err != nil {
+		return nil, err
+	}
+	if len(c.Transition) != len(chain.Transition) || len(c.Grid) != len(chain.Grid) {
+		return nil, fmt.Errorf("the chain rebuilt for its sensitivities has %d states, the chain given %d", c.States(), chain.States())
+	}
+	for k := range c.Transition {
+		if c.Transition[k] != chain.Transition[k] {
+			return nil, fmt.Errorf("the chain rebuilt for its sensitivities differs from the chain given at transition entry %d (another numeric version?)", k)
+		}
+	}
+	for k := range c.Grid {
+		if c.Grid[k] != chain.Grid[k] {
+			return nil, fmt.Errorf("the chain rebuilt for its sensitivities differs from the chain given at grid value %d (another numeric version?)", k)
+		}
+	}
+	return sens, nil
+}
