@@ -10,7 +10,7 @@ import (
 )
 
 // sensitivityManifest sweeps a smooth AR(1) and asks for its derivatives,
-// beside a process that does not and a 2-D VAR that does.
+// beside a process that does not, a 2-D VAR and an i.i.d. law that do.
 const sensitivityManifest = `run: sens-test
 processes:
   - name: persistent
@@ -34,6 +34,11 @@ processes:
     coef: [[0.7, 0.1], [0.05, 0.6]]
     cov: [[0.02, 0.004], [0.004, 0.01]]
     states: 3
+    sensitivities: true
+  - name: returns
+    kind: iid
+    distribution: {law: lognormal, log_mean: 0.03, log_sd: 0.15}
+    states: 7
     sensitivities: true
 `
 
@@ -63,13 +68,14 @@ func TestRunSensitivitiesDeterministic(t *testing.T) {
 		rep, err := Verify(opt.Out, VerifyOptions{})
 		if err != nil {
 			t.Errorf("run %d: verify against run.json: %v", k, err)
-		} else if len(rep.Files) != 20 {
-			t.Errorf("run %d: verify checked %d files, want 20 (7 + 6 + 7)", k, len(rep.Files))
+		} else if len(rep.Files) != 27 {
+			t.Errorf("run %d: verify checked %d files, want 27 (7 + 6 + 7 + 7)", k, len(rep.Files))
 		}
 		outputs = append(outputs, readAll(t, opt.Out))
 	}
-	if len(outputs[0]) != 21 || outputs[0]["persistent.sensitivities.parquet"] == nil || outputs[0]["pair.sensitivities.parquet"] == nil || outputs[0]["plain.sensitivities.parquet"] != nil {
-		t.Errorf("%d files written; want 21, with a sensitivities table for persistent and pair only", len(outputs[0]))
+	if len(outputs[0]) != 28 || outputs[0]["persistent.sensitivities.parquet"] == nil || outputs[0]["pair.sensitivities.parquet"] == nil ||
+		outputs[0]["returns.sensitivities.parquet"] == nil || outputs[0]["plain.sensitivities.parquet"] != nil {
+		t.Errorf("%d files written; want 28, with a sensitivities table for every process but plain", len(outputs[0]))
 	}
 	for k := 1; k < len(outputs); k++ {
 		for name, b := range outputs[0] {

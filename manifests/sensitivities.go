@@ -7,7 +7,8 @@ import (
 )
 
 // differentiable says, for each kind whose chains have parameter
-// sensitivities (solver.AR1.Sensitivities, solver.VAR.Sensitivities), which of its settings allow
+// sensitivities (solver.AR1.Sensitivities, solver.VAR.Sensitivities,
+// solver.IID.Sensitivities), which of its settings allow
 // them: the reason they do not, or "".
 var differentiable = map[string]func(p *processSpec) string{
 	"ar1": func(p *processSpec) string {
@@ -22,6 +23,26 @@ var differentiable = map[string]func(p *processSpec) string{
 	// derivative; that is found when the chain is built, and the job
 	// fails saying so.
 	"var": func(*processSpec) string { return "" },
+	// IID.Sensitivities: every parameter of a normal, log-normal, Student t
+	// or Laplace law; a shape parameter (t's nu, the log-normal's log_sd)
+	// moves the quantiles, so not on equal-mass nodes.
+	"iid": func(p *processSpec) string {
+		l := p.spec.(*iidSpec).dist
+		if l == nil || l.fam == nil {
+			return "" // reported already
+		}
+		switch fam := l.fam.name; fam {
+		case "normal", "laplace":
+			return ""
+		case "t", "lognormal":
+			if p.nodes.set && p.nodes.v == solver.NodesEqualMass.String() {
+				return fmt.Sprintf("a %s law's shape moves the quantiles of equal-mass nodes, which have no derivative here: want nodes lattice, gauss-legendre or gauss-hermite", fam)
+			}
+			return ""
+		default:
+			return fmt.Sprintf("the distribution is %s: sensitivities need a normal, lognormal, t or laplace law here", fam)
+		}
+	},
 }
 
 // checkSensitivities reports a process asking for sensitivities its chains

@@ -43,8 +43,12 @@ func TestSensitivitiesSwitch(t *testing.T) {
 	}
 
 	for _, tc := range []struct{ body, want string }{
-		{"    kind: iid\n    distribution: {law: lognormal, log_mean: 0, log_sd: 0.2}\n    sensitivities: true\n",
-			"s.yaml:6:20: processes[0].sensitivities: kind iid has no parameter sensitivities in this version: want kind ar1, var"},
+		{"    kind: iid\n    distribution: {law: beta, alpha: 2, beta: 3}\n    sensitivities: true\n",
+			"s.yaml:6:20: processes[0].sensitivities: the distribution is beta: sensitivities need a normal, lognormal, t or laplace law"},
+		{"    kind: iid\n    distribution: {law: t, nu: 8}\n    nodes: equal-mass\n    sensitivities: true\n",
+			"processes[0].sensitivities: a t law's shape moves the quantiles of equal-mass nodes"},
+		{"    kind: ar1-volatility\n    rho: 0.9\n    sigma: 0.1\n    vol_rho: 0.8\n    vol_sigma: 0.1\n    sensitivities: true\n",
+			"processes[0].sensitivities: kind ar1-volatility has no parameter sensitivities in this version: want kind ar1, iid, var"},
 		{"    kind: var\n    coef: [[0.9, 0], [0, 0.8]]\n    cov: [[0.01, 0], [0, 0.01]]\n    method: tauchen\n    sensitivities: true\n",
 			"processes[0].sensitivities: method tauchen has no parameter sensitivities"},
 		{ar1 + "    method: tauchen\n    sensitivities: true\n", "processes[0].sensitivities: method tauchen has no parameter sensitivities"},
@@ -62,6 +66,13 @@ func TestSensitivitiesSwitch(t *testing.T) {
 	}
 	if sens, err := v.Jobs[0].Sensitivities(mustSolve(t, v.Jobs[0])); err != nil || len(sens.Params) != 9 || sens.Params[3] != "coef[0][1]" {
 		t.Errorf("VAR Job.Sensitivities: %v, %v; want 9 parameters named as the manifest's sweep names them (coef[0][1])", sens, err)
+	}
+	iid, err := parse("    kind: iid\n    distribution: {law: lognormal, log_mean: 0.03, log_sd: 0.15}\n    states: 7\n    sensitivities: true\n")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if sens, err := iid.Jobs[0].Sensitivities(mustSolve(t, iid.Jobs[0])); err != nil || strings.Join(sens.Params, ",") != "distribution.log_mean,distribution.log_sd" {
+		t.Errorf("iid Job.Sensitivities: %v, %v; want the law's parameters as a sweep names them", sens, err)
 	}
 	if _, err := ParseSpec([]byte(`{"kind":"ar1","rho":0.9,"sigma":0.1,"sensitivities":true}`)); err == nil || !strings.Contains(err.Error(), "sensitivities") {
 		t.Errorf("a canonical spec with sensitivities: %v, want the key refused", err)

@@ -6,9 +6,9 @@ import (
 )
 
 // ErrNoSensitivities reports a chain whose parameter derivatives are not
-// available: a baseline method, or an innovation law without a score
-// (Laplace, mixture).
-var ErrNoSensitivities = errors.New("solver: parameter sensitivities need method maxent and a normal or Student t innovation")
+// available: a baseline method, an AR(1) innovation law without a score
+// (Laplace, mixture), an i.i.d. law without them (beta, mixture).
+var ErrNoSensitivities = errors.New("solver: no parameter sensitivities for this chain (they need method maxent; an AR(1) innovation normal or t; an iid law normal, lognormal, t or laplace)")
 
 // Sensitivity holds the derivatives of a chain with respect to the
 // parameters of its process, at the parameters it was built with.

@@ -146,10 +146,7 @@ func specSensitivities(spec []byte, solved *solver.Chain) (*solver.Sensitivity, 
 		return nil, err
 	}
 	sens, err := job.Sensitivities(solved)
-	if errors.Is(err, solver.ErrNoSensitivities) {
-		return nil, badInput("--sensitivities needs --method maxent")
-	}
-	if errors.Is(err, solver.ErrNotDifferentiable) {
+	if errors.Is(err, solver.ErrNoSensitivities) || errors.Is(err, solver.ErrNotDifferentiable) {
 		return nil, badInput("--sensitivities: %v", err)
 	}
 	return sens, err

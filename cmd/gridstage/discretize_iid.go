@@ -13,8 +13,9 @@ import (
 
 func newIIDCmd() *cobra.Command {
 	var (
-		ms    methodSettings
-		shock shockFlags
+		ms       methodSettings
+		shock    shockFlags
+		withSens bool
 	)
 	cmd := &cobra.Command{
 		Use:   "iid --distribution LAW [parameters] --states N [flags]",
@@ -49,11 +50,18 @@ with - for _):
 			if c.PriorKL != nil {
 				out.PriorKL = c.PriorKL[0]
 			}
-			return printIID(cmd.OutOrStdout(), law, out, solver.IID{Dist: d}, prov, advice, ms.json)
+			var sens *solver.Sensitivity
+			if withSens {
+				if sens, err = specSensitivities(prov.Spec, c); err != nil {
+					return err
+				}
+			}
+			return printIID(cmd.OutOrStdout(), law, out, solver.IID{Dist: d}, prov, advice, sens, ms.json)
 		},
 	}
 	fs := cmd.Flags()
 	ms.register(cmd, false)
+	fs.BoolVar(&withSens, "sensitivities", false, "add the derivatives of the points and the weights with respect to each parameter of the law to the JSON (normal, lognormal, t or laplace)")
 	shock.register(fs, "distribution", "normal", "the law: normal, lognormal, beta, mixture, t or laplace")
 	fs.Float64Var(&shock.mean, "mean", 0, "normal: mean")
 	fs.Float64Var(&shock.sd, "sd", 1, "normal: standard deviation")
@@ -142,7 +150,17 @@ type iidJSON struct {
 	Diagnostics  iidDiag        `json:"diagnostics"`
 	// Advice says what grid would carry the requested moments.
 	Advice string `json:"advice,omitempty"`
+	// Sensitivities holds the derivatives (--sensitivities).
+	Sensitivities *iidSensitivityJSON `json:"sensitivities,omitempty"`
 	provenance
+}
+
+// iidSensitivityJSON holds, for each parameter of the law, the derivative
+// of every point (one array per point, as grid) and of the weights.
+type iidSensitivityJSON struct {
+	Params  []string               `json:"params"`
+	Grid    map[string][][]float64 `json:"grid"`
+	Weights map[string][]float64   `json:"weights"`
 }
 
 type iidDiag struct {
@@ -155,7 +173,7 @@ type iidDiag struct {
 	Shape   solver.RowShape `json:"shape"`
 }
 
-func printIID(w io.Writer, law map[string]any, d *solver.Discrete, p solver.IID, prov provenance, advice string, asJSON bool) error {
+func printIID(w io.Writer, law map[string]any, d *solver.Discrete, p solver.IID, prov provenance, advice string, sens *solver.Sensitivity, asJSON bool) error {
 	got := solver.WeightedMoments(d.Weights, d.Nodes)
 	truth := p.Conditional(nil)
 	shape := solver.Shape(d.Weights, d.Nodes)
@@ -164,8 +182,19 @@ func printIID(w io.Writer, law map[string]any, d *solver.Discrete, p solver.IID,
 		for i, x := range d.Nodes {
 			grid[i] = []float64{x}
 		}
-		return finitejson.Encode(w, iidJSON{Kind: "iid", Distribution: law, Grid: grid, Weights: d.Weights, Moments: d.Moments,
-			Diagnostics: iidDiag{Matched: d.Matched, Discrete: got, True: truth, PriorKL: d.PriorKL, Shape: shape}, Advice: advice, provenance: prov})
+		j := iidJSON{Kind: "iid", Distribution: law, Grid: grid, Weights: d.Weights, Moments: d.Moments,
+			Diagnostics: iidDiag{Matched: d.Matched, Discrete: got, True: truth, PriorKL: d.PriorKL, Shape: shape}, Advice: advice, provenance: prov}
+		if sens != nil {
+			j.Sensitivities = &iidSensitivityJSON{Params: sens.Params, Grid: map[string][][]float64{}, Weights: map[string][]float64{}}
+			for k, name := range sens.Params {
+				g := make([][]float64, len(d.Nodes))
+				for i := range g {
+					g[i] = sens.Grid[k][i : i+1]
+				}
+				j.Sensitivities.Grid[name], j.Sensitivities.Weights[name] = g, sens.Stationary[k]
+			}
+		}
+		return finitejson.Encode(w, j)
 	}
 	if d.Moments == 0 {
 		fmt.Fprintf(w, "%s distribution, %d points, no moment matched: the weights are the node rule's own times the density, normalised\n\n", law["law"], len(d.Nodes))

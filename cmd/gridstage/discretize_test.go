@@ -310,3 +310,38 @@ func TestDiscretizeNoMoments(t *testing.T) {
 		t.Errorf("var --moments 0: exit %d, %q (want 2: a vector chain has no prior-only form here)", code, errOut)
 	}
 }
+
+// TestDiscretizeIIDSensitivitiesJSON: discretize iid --sensitivities adds
+// the derivatives of the points and the weights in each parameter of the
+// law; the weights' derivatives sum to zero within 1e-12 (the weights sum
+// to one; entries of order 0.1 round at 1e-17). Their accuracy is
+// solver.TestIIDSensitivitiesAgainstFiniteDifferences. A law without them
+// is refused, naming it.
+func TestDiscretizeIIDSensitivitiesJSON(t *testing.T) {
+	code, out, errOut := run(t, "discretize", "iid", "--distribution", "t", "--nu", "8", "--states", "7", "--sensitivities", "--json")
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, errOut)
+	}
+	var v struct {
+		Sensitivities struct {
+			Params  []string             `json:"params"`
+			Weights map[string][]float64 `json:"weights"`
+		} `json:"sensitivities"`
+	}
+	if err := json.Unmarshal([]byte(out), &v); err != nil {
+		t.Fatal(err)
+	}
+	if got := strings.Join(v.Sensitivities.Params, ","); got != "distribution.nu,distribution.location,distribution.scale" {
+		t.Fatalf("params = %s", got)
+	}
+	var s float64
+	for _, x := range v.Sensitivities.Weights["distribution.nu"] {
+		s += x
+	}
+	if len(v.Sensitivities.Weights["distribution.nu"]) != 7 || math.Abs(s) > 1e-12 {
+		t.Errorf("d weights/d nu: %v (sum %g)", v.Sensitivities.Weights["distribution.nu"], s)
+	}
+	if code, _, errOut := run(t, "discretize", "iid", "--distribution", "beta", "--states", "5", "--sensitivities", "--json"); code != 2 || !strings.Contains(errOut, "the law is beta") {
+		t.Errorf("beta with --sensitivities: exit %d, %q", code, errOut)
+	}
+}
