@@ -203,6 +203,10 @@ func (p *processSpec) check(r *reporter) bool {
 		p.states.v = defaultStates
 	}
 
+	if p.role == roleSpec && p.moments.set && p.moments.v == solver.NoMoments {
+		// A canonical spec records moments 0 as solver.NoMoments.
+		p.moments.v = 0
+	}
 	if p.moments.set {
 		switch {
 		case !maxent:

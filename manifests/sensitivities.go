@@ -2,6 +2,7 @@ package manifests
 
 import (
 	"fmt"
+	"math"
 
 	"gridstage/solver"
 )
@@ -118,6 +119,17 @@ func (j Job) Sensitivities(chain *solver.Chain) (*solver.Sensitivity, error) {
 	for k := range c.Grid {
 		if c.Grid[k] != chain.Grid[k] {
 			return nil, fmt.Errorf("the chain rebuilt for its sensitivities differs from the chain given at grid value %d (another numeric version?)", k)
+		}
+	}
+	// No non-finite number reaches a file: a derivative that overflows
+	// (multipliers near a hull's facet under the exact policy) fails the job.
+	for k, name := range sens.Params {
+		for _, part := range [][]float64{sens.Grid[k], sens.Transition[k], sens.Stationary[k]} {
+			for _, v := range part {
+				if math.IsNaN(v) || math.IsInf(v, 0) {
+					return nil, fmt.Errorf("the derivative in %s is not finite at these parameters (a state on the edge of what its grid can carry; matching: smooth avoids it)", name)
+				}
+			}
 		}
 	}
 	return sens, nil

@@ -25,6 +25,7 @@ func TestIIDSensitivitiesAgainstFiniteDifferences(t *testing.T) {
 		{"lognormal lattice", func(v []float64) Distribution { return LogNormal{Mu: v[0], Sigma: v[1]} }, []float64{0.03, 0.15}, Settings{States: 9, Moments: 4}},
 		{"lognormal clipped lattice", func(v []float64) Distribution { return LogNormal{Mu: v[0], Sigma: v[1]} }, []float64{0, 0.6}, Settings{States: 9, Moments: 3, Matching: MatchSmooth}},
 		{"lognormal gauss-hermite", func(v []float64) Distribution { return LogNormal{Mu: v[0], Sigma: v[1]} }, []float64{0.1, 0.3}, Settings{States: 9, Moments: 4, Nodes: NodesGaussHermite}},
+		{"t, no moments (the prior row)", func(v []float64) Distribution { return StudentT{Nu: v[0], Loc: v[1], Scale: v[2]} }, []float64{7, 0, 1}, Settings{States: 7, Moments: NoMoments}},
 		{"laplace equal-mass", func(v []float64) Distribution { return Laplace{Loc: v[0], Scale: v[1]} }, []float64{-0.2, 0.4}, Settings{States: 8, Moments: 4, Nodes: NodesEqualMass}},
 	}
 	for _, tc := range cases {

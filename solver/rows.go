@@ -77,6 +77,14 @@ func maxentRows(nodes, logW []float64, law conditional, L int, match Matching, t
 // scalarRowSens.
 func maxentRowsKeep(nodes, logW []float64, law conditional, L int, match Matching, trans []float64, matched []int, certs []Certificate, keep *rowMultipliers) {
 	n, m := len(nodes), len(law.Mean)
+	if keep != nil {
+		// Every state unmirrored and without multipliers until solved: a
+		// prior row (L = 0) stays so.
+		keep.lam, keep.regH, keep.mirror = make([][]float64, m), make([][]float64, m), make([]int, m)
+		for i := range keep.mirror {
+			keep.mirror[i] = -1
+		}
+	}
 	if L == 0 {
 		priorRows(nodes, logW, law, trans, matched, certs)
 		return
@@ -123,12 +131,6 @@ func maxentRowsKeep(nodes, logW []float64, law conditional, L int, match Matchin
 			if curv != nil {
 				keep.regH[i] = append([]float64(nil), curv...)
 			}
-		}
-	}
-	if keep != nil {
-		keep.lam, keep.regH, keep.mirror = make([][]float64, m), make([][]float64, m), make([]int, m)
-		for i := range keep.mirror {
-			keep.mirror[i] = -1
 		}
 	}
 	mirror := scalarMirror(nodes, logW, law)

@@ -60,6 +60,7 @@ func TestSensitivitiesAgainstFiniteDifferences(t *testing.T) {
 		{"exact lattice, every state solved", AR1{Mean: 0.5, Rho: 0.8, Sigma: 0.1}, Settings{States: 15, Moments: 4}},
 		{"exact gauss-hermite", AR1{Rho: 0.6, Sigma: 0.3}, Settings{States: 11, Moments: 2, Nodes: NodesGaussHermite}},
 		{"smooth equal-mass, Student t", AR1{Rho: 0.95, Sigma: 0.1, Shock: Standardized{StudentT{Nu: 8, Scale: 1}}}, Settings{States: 11, Moments: 4, Nodes: NodesEqualMass, Matching: MatchSmooth}},
+		{"no moments (the prior rows)", AR1{Mean: 0.2, Rho: 0.85, Sigma: 0.1}, Settings{States: 9, Moments: NoMoments}},
 	}
 	for _, tc := range cases {
 		c, sens, err := tc.p.Sensitivities(tc.s)

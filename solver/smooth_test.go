@@ -110,30 +110,56 @@ func TestSmoothContinuityInSigma(t *testing.T) {
 	// so the variance parameter swept is a VAR's innovation variance
 	// cov[1,1], on coordinate axes: principal axes turn, and flip sign,
 	// with the covariance, which moves the grid itself (see doc.go).
-	chain := func(v float64) []float64 {
-		c, err := VAR{Coef: []float64{0.9, 0.05, 0.02, 0.8}, Cov: []float64{0.01, 0.002, 0.002, v}}.Discretize(
-			Settings{States: 7, Moments: 4, Nodes: NodesLattice, Axes: AxesCoordinate, Matching: MatchSmooth})
-		if err != nil {
-			t.Fatal(err)
+	for _, tc := range varContinuityCases() {
+		chain := func(v float64) []float64 {
+			c, err := VAR{Coef: []float64{0.9, 0.05, 0.02, 0.8}, Cov: []float64{0.01, 0.002, 0.002, v}}.Discretize(
+				Settings{States: tc.axis, Moments: 4, Nodes: tc.rule, Axes: AxesCoordinate, Matching: MatchSmooth})
+			if err != nil {
+				t.Fatal(err)
+			}
+			return c.Transition
 		}
-		return c.Transition
-	}
-	if worst, at := sweepContinuity(chain, 0.004, 0.03, 30, 2); worst > continuityBound {
-		t.Errorf("VAR cov[1,1]: a transition probability changes by %.3g across [%.10f, +1e-9]", worst, at)
+		if worst, at := sweepContinuity(chain, 0.004, 0.03, 30, 2); worst > continuityBound {
+			t.Errorf("VAR cov[1,1], %s, %d per axis: a transition probability changes by %.3g across [%.10f, +1e-9]", tc.rule, tc.axis, worst, at)
+		}
 	}
 }
 
-func TestSmoothContinuityInVARCoefficient(t *testing.T) {
-	chain := func(b float64) []float64 {
-		c, err := VAR{Coef: []float64{b, 0.1, 0.05, 0.7}, Cov: []float64{0.01, 0.003, 0.003, 0.02}}.Discretize(
-			Settings{States: 7, Moments: 4, Nodes: NodesLattice, Axes: AxesCoordinate, Matching: MatchSmooth})
-		if err != nil {
-			t.Fatal(err)
+// varContinuityCases are the grids of the VAR continuity checks: every
+// node rule with 3 points per axis (9 states) and 5 (25 states, the
+// nearest square to the 21), and the 7-point lattice.
+func varContinuityCases() []struct {
+	rule NodeRule
+	axis int
+} {
+	out := []struct {
+		rule NodeRule
+		axis int
+	}{{NodesLattice, 7}}
+	for _, rule := range []NodeRule{NodesLattice, NodesGaussHermite, NodesGaussLegendre, NodesEqualMass} {
+		for _, axis := range []int{3, 5} {
+			out = append(out, struct {
+				rule NodeRule
+				axis int
+			}{rule, axis})
 		}
-		return c.Transition
 	}
-	if worst, at := sweepContinuity(chain, 0.5, 0.95, 30, 2); worst > continuityBound {
-		t.Errorf("VAR coef[0,0]: a transition probability changes by %.3g across [%.10f, +1e-9]", worst, at)
+	return out
+}
+
+func TestSmoothContinuityInVARCoefficient(t *testing.T) {
+	for _, tc := range varContinuityCases() {
+		chain := func(b float64) []float64 {
+			c, err := VAR{Coef: []float64{b, 0.1, 0.05, 0.7}, Cov: []float64{0.01, 0.003, 0.003, 0.02}}.Discretize(
+				Settings{States: tc.axis, Moments: 4, Nodes: tc.rule, Axes: AxesCoordinate, Matching: MatchSmooth})
+			if err != nil {
+				t.Fatal(err)
+			}
+			return c.Transition
+		}
+		if worst, at := sweepContinuity(chain, 0.5, 0.95, 30, 2); worst > continuityBound {
+			t.Errorf("VAR coef[0,0], %s, %d per axis: a transition probability changes by %.3g across [%.10f, +1e-9]", tc.rule, tc.axis, worst, at)
+		}
 	}
 }
 

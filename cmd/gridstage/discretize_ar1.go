@@ -2,7 +2,6 @@ package main
 
 import (
 	"errors"
-	"fmt"
 
 	"github.com/spf13/cobra"
 
@@ -56,7 +55,7 @@ func newAR1Cmd() *cobra.Command {
 			out := chainReport{Kind: "ar1", Process: ar1Params(p, shock), Chain: sol.Chain, Diag: sol.Diagnostics,
 				Baseline: sol.Baseline, BaselineDiag: sol.BaselineDiagnostics, Provenance: &prov, Advice: advice}
 			if withSens {
-				if out.Sensitivities, err = ar1Sensitivities(p, s, sol.Chain); err != nil {
+				if out.Sensitivities, err = specSensitivities(prov.Spec, sol.Chain); err != nil {
 					return err
 				}
 			}
@@ -71,24 +70,6 @@ func newAR1Cmd() *cobra.Command {
 	ms.register(cmd, true)
 	shock.register(fs, "innovation", "normal", "innovation law: normal, mixture, t or laplace (standardized to mean 0, variance 1)")
 	return cmd
-}
-
-// ar1Sensitivities differentiates the chain discretize solved; the chain
-// the derivatives belong to must be the same one, bit for bit.
-func ar1Sensitivities(p solver.AR1, s solver.Settings, solved *solver.Chain) (*solver.Sensitivity, error) {
-	c, sens, err := p.Sensitivities(s)
-	if errors.Is(err, solver.ErrNoSensitivities) {
-		return nil, badInput("--sensitivities needs --method maxent and --innovation normal or t")
-	}
-	if err != nil {
-		return nil, err
-	}
-	for k, v := range c.Transition {
-		if v != solved.Transition[k] {
-			return nil, fmt.Errorf("gridstage: the chain differentiated differs from the chain solved at entry %d", k)
-		}
-	}
-	return sens, nil
 }
 
 // needsNormal refuses adda-cooper, as the chain's or the baseline's method,
