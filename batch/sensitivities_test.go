@@ -10,7 +10,8 @@ import (
 )
 
 // sensitivityManifest sweeps a smooth AR(1) and asks for its derivatives,
-// beside a process that does not, a 2-D VAR and an i.i.d. law that do.
+// beside a process that does not, and a 2-D VAR, an i.i.d. law and a
+// product of both kinds that do.
 const sensitivityManifest = `run: sens-test
 processes:
   - name: persistent
@@ -40,6 +41,12 @@ processes:
     distribution: {law: lognormal, log_mean: 0.03, log_sd: 0.15}
     states: 7
     sensitivities: true
+  - name: income
+    kind: product
+    components:
+      - {kind: ar1, rho: 0.95, sigma: 0.1, states: 5, matching: smooth}
+      - {kind: iid, distribution: {law: t, nu: 8, scale: 0.05}, states: 3}
+    sensitivities: true
 `
 
 // TestRunSensitivitiesDeterministic: the sensitivities table is written
@@ -68,14 +75,14 @@ func TestRunSensitivitiesDeterministic(t *testing.T) {
 		rep, err := Verify(opt.Out, VerifyOptions{})
 		if err != nil {
 			t.Errorf("run %d: verify against run.json: %v", k, err)
-		} else if len(rep.Files) != 27 {
-			t.Errorf("run %d: verify checked %d files, want 27 (7 + 6 + 7 + 7)", k, len(rep.Files))
+		} else if len(rep.Files) != 34 {
+			t.Errorf("run %d: verify checked %d files, want 34 (7 + 6 + 7 + 7 + 7)", k, len(rep.Files))
 		}
 		outputs = append(outputs, readAll(t, opt.Out))
 	}
-	if len(outputs[0]) != 28 || outputs[0]["persistent.sensitivities.parquet"] == nil || outputs[0]["pair.sensitivities.parquet"] == nil ||
+	if len(outputs[0]) != 35 || outputs[0]["income.sensitivities.parquet"] == nil || outputs[0]["persistent.sensitivities.parquet"] == nil || outputs[0]["pair.sensitivities.parquet"] == nil ||
 		outputs[0]["returns.sensitivities.parquet"] == nil || outputs[0]["plain.sensitivities.parquet"] != nil {
-		t.Errorf("%d files written; want 28, with a sensitivities table for every process but plain", len(outputs[0]))
+		t.Errorf("%d files written; want 35, with a sensitivities table for every process but plain", len(outputs[0]))
 	}
 	for k := 1; k < len(outputs); k++ {
 		for name, b := range outputs[0] {

@@ -58,7 +58,8 @@ func (p *processSpec) checkSensitivities(r *reporter) {
 		r.add(at, ErrRule, "kind %s has no parameter sensitivities in this version: want kind %s, or leave sensitivities out", p.kind.v, sensitivityKinds())
 		return
 	}
-	if m := p.chosenMethod(); m != solver.MaxEnt {
+	if _, composite := p.spec.(compositeKind); !composite && p.chosenMethod() != solver.MaxEnt {
+		m := p.chosenMethod()
 		r.add(at, ErrRule, "method %s has no parameter sensitivities: they differentiate the maximum-entropy dual (method maxent)", m)
 		return
 	}
@@ -134,3 +135,53 @@ func (j Job) Sensitivities(chain *solver.Chain) (*solver.Sensitivity, error) {
 	}
 	return sens, nil
 }
+
+// Sensitivities differentiates every component (each must have
+// sensitivities) and combines them as solver.Product combines the
+// chains; parameters are named components[i].<name>, as a sweep names
+// them.
+func (m productModel) Sensitivities(solver.Settings) (*solver.Chain, *solver.Sensitivity, error) {
+	chains := make([]*solver.Chain, len(m.Parts))
+	sens := make([]*solver.Sensitivity, len(m.Parts))
+	prefix := make([]string, len(m.Parts))
+	for i, p := range m.Parts {
+		d, ok := p.(differentiableModel)
+		if !ok {
+			return nil, nil, fmt.Errorf("components[%d]: %w", i, ErrNoSensitivities)
+		}
+		c, s, err := d.Sensitivities(m.Settings[i])
+		if err != nil {
+			return nil, nil, fmt.Errorf("components[%d]: %w", i, err)
+		}
+		chains[i], sens[i], prefix[i] = c, s, fmt.Sprintf("components[%d].", i)
+	}
+	ps, err := solver.ProductSensitivities(chains, sens, prefix)
+	if err != nil {
+		return nil, nil, err
+	}
+	return solver.Product(chains...), ps, nil
+}
+
+// productRule: every component's own, for a product of ar1, iid and var
+// components (solver.ProductSensitivities). It is registered in init, as
+// it looks components up in differentiable.
+func productRule(p *processSpec) string {
+	for i, part := range p.spec.(*productSpec).parts {
+		if part == nil || part.spec == nil {
+			return "" // reported already
+		}
+		rule, ok := differentiable[part.kind.v]
+		switch {
+		case !ok || part.kind.v == "product":
+			return fmt.Sprintf("components[%d] is kind %s, which has no parameter sensitivities in this version: want components of kinds ar1, iid, var", i, part.kind.v)
+		case part.chosenMethod() != solver.MaxEnt:
+			return fmt.Sprintf("components[%d] has method %s: sensitivities differentiate the maximum-entropy dual (method maxent)", i, part.chosenMethod())
+		}
+		if why := rule(part); why != "" {
+			return fmt.Sprintf("components[%d]: %s", i, why)
+		}
+	}
+	return ""
+}
+
+func init() { differentiable["product"] = productRule }

@@ -48,7 +48,7 @@ func TestSensitivitiesSwitch(t *testing.T) {
 		{"    kind: iid\n    distribution: {law: t, nu: 8}\n    nodes: equal-mass\n    sensitivities: true\n",
 			"processes[0].sensitivities: a t law's shape moves the quantiles of equal-mass nodes"},
 		{"    kind: ar1-volatility\n    rho: 0.9\n    sigma: 0.1\n    vol_rho: 0.8\n    vol_sigma: 0.1\n    sensitivities: true\n",
-			"processes[0].sensitivities: kind ar1-volatility has no parameter sensitivities in this version: want kind ar1, iid, var"},
+			"processes[0].sensitivities: kind ar1-volatility has no parameter sensitivities in this version: want kind ar1, iid, product, var"},
 		{"    kind: var\n    coef: [[0.9, 0], [0, 0.8]]\n    cov: [[0.01, 0], [0, 0.01]]\n    method: tauchen\n    sensitivities: true\n",
 			"processes[0].sensitivities: method tauchen has no parameter sensitivities"},
 		{ar1 + "    method: tauchen\n    sensitivities: true\n", "processes[0].sensitivities: method tauchen has no parameter sensitivities"},
@@ -73,6 +73,23 @@ func TestSensitivitiesSwitch(t *testing.T) {
 	}
 	if sens, err := iid.Jobs[0].Sensitivities(mustSolve(t, iid.Jobs[0])); err != nil || strings.Join(sens.Params, ",") != "distribution.log_mean,distribution.log_sd" {
 		t.Errorf("iid Job.Sensitivities: %v, %v; want the law's parameters as a sweep names them", sens, err)
+	}
+	prod, err := parse("    kind: product\n    components:\n      - {kind: ar1, rho: 0.9, sigma: 0.1, states: 5, matching: smooth}\n      - {kind: iid, distribution: {law: normal, sd: 0.2}, states: 3}\n    sensitivities: true\n")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if sens, err := prod.Jobs[0].Sensitivities(mustSolve(t, prod.Jobs[0])); err != nil || len(sens.Params) != 5 || sens.Params[1] != "components[0].rho" || sens.Params[4] != "components[1].distribution.sd" {
+		t.Errorf("product Job.Sensitivities: %v, %v; want components[i].<name> for every component's parameters", sens, err)
+	}
+	for _, tc := range []struct{ body, want string }{
+		{"    kind: product\n    components:\n      - {kind: ar1, rho: 0.9, sigma: 0.1, innovation: {law: laplace}}\n      - {kind: iid, distribution: {law: normal, sd: 0.2}}\n    sensitivities: true\n",
+			"processes[0].sensitivities: components[0]: the innovation is laplace"},
+		{"    kind: product\n    components:\n      - {kind: lifecycle, rho: [0.9, 0.9], sigma: [0.1, 0.1], initial_sd: 0.2}\n      - {kind: iid, distribution: {law: normal, sd: 0.2}}\n    sensitivities: true\n",
+			"processes[0].sensitivities: components[0] is kind lifecycle, which has no parameter sensitivities"},
+	} {
+		if _, err := parse(tc.body); err == nil || !strings.Contains(err.Error(), tc.want) {
+			t.Errorf("%q: error %v, want it to contain %q", tc.body, err, tc.want)
+		}
 	}
 	if _, err := ParseSpec([]byte(`{"kind":"ar1","rho":0.9,"sigma":0.1,"sensitivities":true}`)); err == nil || !strings.Contains(err.Error(), "sensitivities") {
 		t.Errorf("a canonical spec with sensitivities: %v, want the key refused", err)

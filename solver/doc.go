@@ -108,12 +108,13 @@
 // parameter sensitivities (AR1.Sensitivities in mean, ρ and σ;
 // VAR.Sensitivities in every intercept, coefficient and covariance entry;
 // IID.Sensitivities in every parameter of a normal, log-normal, Student t
-// or Laplace law) are exact derivatives of whichever policy built them;
+// or Laplace law; ProductSensitivities for products of these) are exact
+// derivatives of whichever policy built them;
 // under MatchExact they exist only where no state changes level, and on
 // principal axes only where the stationary covariance has distinct
-// eigenvalues. Other kinds and laws (stochastic volatility, life cycles,
-// products; beta and mixture laws) have none yet: their manifests are
-// refused naming the field.
+// eigenvalues. Other kinds and laws (stochastic volatility, life cycles;
+// beta and mixture laws) have none yet: their manifests are refused
+// naming the field.
 //
 // The classic methods of Tauchen (1986), Tauchen and Hussey (1991) with the
 // Flodén (2008) weighting, Rouwenhorst (1995; Kopecky and Suen 2010) and the
