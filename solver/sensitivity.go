@@ -231,9 +231,12 @@ func regularizeCholesky(h, l []float64, L int) {
 }
 
 // Sensitivities builds the chain as Discretize does and its derivatives
-// with respect to the mean, ρ and σ (Params "mean", "rho", "sigma"). It
-// returns ErrNoSensitivities for a baseline method or an innovation law
-// without a score.
+// with respect to the mean, ρ and σ (Params "mean", "rho", "sigma") and,
+// for a Student t innovation, its degrees of freedom ("innovation.nu",
+// as a sweep names it: the grid, scaled by the stationary s.d., does not
+// move; the prior, the moment targets and, under the smooth policy, the
+// penalty's scales do). It returns ErrNoSensitivities for a baseline
+// method or an innovation law without a score.
 func (p AR1) Sensitivities(s Settings) (*Chain, *Sensitivity, error) {
 	if s.Method != MaxEnt {
 		return nil, nil, ErrNoSensitivities
@@ -295,8 +298,60 @@ func (p AR1) Sensitivities(s Settings) (*Chain, *Sensitivity, error) {
 		sens.Transition[k] = make([]float64, n*n)
 	}
 	scalarRowSens(nodes, law, L, c.Transition, keep, dNodes, dMean, dSD, sens.Transition)
+	if st, ok := p.Shock.(Standardized); ok {
+		if t, ok := st.Base.(StudentT); ok {
+			// The innovation's degrees of freedom: a shape parameter.
+			sens.Params = append(sens.Params, "innovation.nu")
+			sens.Grid = append(sens.Grid, make([]float64, n))
+			d := make([]float64, n*n)
+			innovationShapeSens(nodes, law, L, c.Transition, keep, StudentT{Nu: t.Nu, Scale: 1}, d)
+			sens.Transition = append(sens.Transition, d)
+		}
+	}
 	if _, sens.Stationary, err = stationaryDeriv(c.Transition, n, sens.Transition); err != nil {
 		return nil, nil, err
 	}
 	return c, sens, nil
+}
+
+// innovationShapeSens differentiates the maxent rows of a scalar chain
+// along a shape parameter of its standardized innovation, whose unscaled
+// law base moves as lawMotion(base)[0] says (Student t: ν). At fixed
+// standardized points z the prior log q = log W + log s + log f(s z)
+// moves by ds/s + f'/f(s z)·z ds + ∂θ log f(s z), s the base's s.d., and
+// every moment function z^k − τ_k by −dτ_k; the points themselves do not
+// move. It fills dTrans (m×n).
+func innovationShapeSens(nodes []float64, law conditional, L int, trans []float64, keep *rowMultipliers, base Distribution, dTrans []float64) {
+	params, score, err := lawMotion(base)
+	if err != nil {
+		panic("solver: innovationShapeSens on a law without motion")
+	}
+	prm := params[0]
+	sd := base.StdDev()
+	n, m := len(nodes), len(law.Mean)
+	targets := shockTargets(law.Shock, L)
+	z, dev, dlogq, dDev := make([]float64, n), make([]float64, n*L), make([]float64, n), make([]float64, n*L)
+	for j := range dDev {
+		dDev[j] = -prm.dStd(j%L + 1)
+	}
+	for i := 0; i < m; i++ {
+		if keep.mirror[i] >= 0 {
+			continue
+		}
+		for j, x := range nodes {
+			z[j] = (x - law.Mean[i]) / law.SD[i]
+			u := sd * z[j]
+			dlogq[j] = prm.dSD/sd + score(u)*z[j]*prm.dSD + prm.dLogPdf(u)
+		}
+		var dReg []float64
+		if keep.regH[i] != nil {
+			dReg = penaltyMotion(law.Shock, keep.lam[i], prm.dStd)
+		}
+		genericRowSens(trans[i*n:(i+1)*n], keep.lam[i], keep.regH[i], dReg, z, targets, dev, dlogq, dDev, L, dTrans[i*n:(i+1)*n])
+	}
+	for i := 0; i < m; i++ {
+		if k := keep.mirror[i]; k >= 0 {
+			mirrorRow(dTrans[i*n:(i+1)*n], dTrans[k*n:(k+1)*n])
+		}
+	}
 }

@@ -60,6 +60,8 @@ func TestSensitivitiesAgainstFiniteDifferences(t *testing.T) {
 		{"exact lattice, every state solved", AR1{Mean: 0.5, Rho: 0.8, Sigma: 0.1}, Settings{States: 15, Moments: 4}},
 		{"exact gauss-hermite", AR1{Rho: 0.6, Sigma: 0.3}, Settings{States: 11, Moments: 2, Nodes: NodesGaussHermite}},
 		{"smooth equal-mass, Student t", AR1{Rho: 0.95, Sigma: 0.1, Shock: Standardized{StudentT{Nu: 8, Scale: 1}}}, Settings{States: 11, Moments: 4, Nodes: NodesEqualMass, Matching: MatchSmooth}},
+		{"exact lattice, Student t", AR1{Rho: 0.7, Sigma: 0.2, Shock: Standardized{StudentT{Nu: 9, Scale: 1}}}, Settings{States: 9, Moments: 4}},
+		{"smooth gauss-legendre, Student t near the hull", AR1{Rho: 0.97, Sigma: 0.1, Shock: Standardized{StudentT{Nu: 6.5, Scale: 1}}}, Settings{States: 9, Moments: 4, Nodes: NodesGaussLegendre, Matching: MatchSmooth}},
 		{"no moments (the prior rows)", AR1{Mean: 0.2, Rho: 0.85, Sigma: 0.1}, Settings{States: 9, Moments: NoMoments}},
 	}
 	for _, tc := range cases {
@@ -72,6 +74,17 @@ func TestSensitivitiesAgainstFiniteDifferences(t *testing.T) {
 			t.Errorf("%s: the chain with sensitivities differs from Discretize's by %.3g", tc.name, d)
 		}
 		for k, name := range sens.Params {
+			if name == "innovation.nu" && tc.s.Nodes == NodesEqualMass {
+				// Not a check of the derivative: in this case the chain
+				// itself jumps in ν. State 0 (relaxed, far below its
+				// conditional law) has P[0][4] = 0 at ν = 8 and 0.0048 at
+				// ν = 8.00005, so no difference quotient converges there.
+				continue
+			}
+			nu := 0.0
+			if st, ok := tc.p.Shock.(Standardized); ok {
+				nu = st.Base.(StudentT).Nu
+			}
 			at := func(v float64) AR1 {
 				q := tc.p
 				switch name {
@@ -81,10 +94,12 @@ func TestSensitivitiesAgainstFiniteDifferences(t *testing.T) {
 					q.Rho = v
 				case "sigma":
 					q.Sigma = v
+				case "innovation.nu":
+					q.Shock = Standardized{StudentT{Nu: v, Scale: 1}}
 				}
 				return q
 			}
-			x := map[string]float64{"mean": tc.p.Mean, "rho": tc.p.Rho, "sigma": tc.p.Sigma}[name]
+			x := map[string]float64{"mean": tc.p.Mean, "rho": tc.p.Rho, "sigma": tc.p.Sigma, "innovation.nu": nu}[name]
 			var matchedMoved bool
 			trans := func(v float64) []float64 {
 				ch, err := at(v).Discretize(tc.s)

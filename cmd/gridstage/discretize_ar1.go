@@ -66,7 +66,7 @@ func newAR1Cmd() *cobra.Command {
 	fs.Float64Var(&rho, "rho", 0, "persistence, in (-1, 1) (required)")
 	fs.Float64Var(&sigma, "sigma", 0, "innovation standard deviation, > 0 (required)")
 	fs.Float64Var(&mean, "mean", 0, "unconditional mean")
-	fs.BoolVar(&withSens, "sensitivities", false, "add the derivatives of the grid, the transition matrix and the stationary distribution with respect to mean, rho and sigma to the JSON (maxent; normal or t innovation)")
+	fs.BoolVar(&withSens, "sensitivities", false, "add the derivatives of the grid, the transition matrix and the stationary distribution with respect to mean, rho, sigma (and a t innovation's nu) to the JSON (maxent; normal or t innovation)")
 	ms.register(cmd, true)
 	shock.register(fs, "innovation", "normal", "innovation law: normal, mixture, t or laplace (standardized to mean 0, variance 1)")
 	return cmd
