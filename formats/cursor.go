@@ -2,6 +2,7 @@ package formats
 
 import (
 	"io"
+	"math"
 
 	"github.com/apache/arrow-go/v18/arrow"
 	"github.com/apache/arrow-go/v18/arrow/array"
@@ -43,6 +44,15 @@ func (c *cursor) fileRow() int64 { return c.base + int64(c.row) }
 func (c *cursor) i32(col int) int32 { return c.rec.Column(col).(*array.Int32).Value(c.row) }
 func (c *cursor) f64(col int) float64 {
 	return c.rec.Column(col).(*array.Float64).Value(c.row)
+}
+
+// value returns a nullable value column's number, NaN for a null (a
+// number that had no finite value, see nullReasons).
+func (c *cursor) value(col int) float64 {
+	if c.null(col) {
+		return math.NaN()
+	}
+	return c.f64(col)
 }
 func (c *cursor) str(col int) string   { return c.rec.Column(col).(*array.String).Value(c.row) }
 func (c *cursor) boolean(col int) bool { return c.rec.Column(col).(*array.Boolean).Value(c.row) }

@@ -104,6 +104,8 @@ func diffDiag(a, b *solver.Diagnostics) string {
 	switch {
 	case a.Method != b.Method || a.Fallbacks != b.Fallbacks || a.StationaryErr != b.StationaryErr:
 		return "method, fallbacks or stationary error"
+	case a.Degenerate != b.Degenerate || a.FarFromUnimodal != b.FarFromUnimodal:
+		return "degenerate or far-from-unimodal count"
 	case !sameBits(a.Stationary, b.Stationary):
 		return "stationary"
 	case !sameBits(summaryBits(a.Chain), summaryBits(b.Chain)) || !sameBits(summaryBits(a.True), summaryBits(b.True)):
@@ -117,6 +119,12 @@ func diffDiag(a, b *solver.Diagnostics) string {
 		x, y := a.States[i], b.States[i]
 		if x.Matched != y.Matched || !sameBits(x.Level, y.Level) {
 			return fmt.Sprintf("state %d level or matched", i)
+		}
+		if (x.PriorKL == nil) != (y.PriorKL == nil) || x.PriorKL != nil && *x.PriorKL != *y.PriorKL {
+			return fmt.Sprintf("state %d prior KL", i)
+		}
+		if (x.Shape == nil) != (y.Shape == nil) || x.Shape != nil && *x.Shape != *y.Shape {
+			return fmt.Sprintf("state %d shape", i)
 		}
 		for k, pair := range [][2]solver.Moments{{x.Chain, y.Chain}, {x.True, y.True}, {x.AbsErr, y.AbsErr}, {x.RelErr, y.RelErr}} {
 			if !sameBits(momentBits(pair[0]), momentBits(pair[1])) {

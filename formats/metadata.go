@@ -16,8 +16,10 @@ import (
 // added the vector columns of the diagnostics and summary tables; version 3
 // the numeric version (KeyNumeric), which verify checks every spec hash
 // against; version 4 the baseline table (the comparison method's
-// transition matrices).
-const FormatVersion = "4"
+// transition matrices); version 5 the row-shape and degenerate columns,
+// and nulls with a reason (null_reasons) where a moment or an error has
+// no finite value.
+const FormatVersion = "5"
 
 // Key/value metadata keys carried by every file (Parquet key/value
 // metadata; Arrow IPC schema metadata).

@@ -365,6 +365,11 @@ func (r *Reader) readAge(rec *Record) error {
 		if !su.null(21) {
 			d.StationaryErr = su.str(21)
 		}
+		tail := 22 + summaryVecColumns(dim)
+		if !su.null(tail) {
+			d.Degenerate = su.str(tail)
+		}
+		d.FarFromUnimodal = int(su.i32(tail + 1))
 		moments := int32(-1)
 		if !su.null(5) {
 			moments = su.i32(5)
@@ -426,6 +431,16 @@ func (r *Reader) readAge(rec *Record) error {
 			if v != nil {
 				v.MeanErr = append(v.MeanErr, dg.f64(first+16))
 				v.CovErr = append(v.CovErr, dg.f64(first+17))
+			}
+			if !dg.null(first + 18) {
+				kl := dg.f64(first + 18)
+				sc.PriorKL = &kl
+			}
+			if dg.null(first+19) != dg.null(first+20) {
+				return r.fail(TableDiagnostics, dg, point, age, "columns %s and %s are not null together", ColStranded, ColFarFromUnimodal)
+			}
+			if !dg.null(first + 19) {
+				sc.Shape = &solver.RowShape{StrandedMass: dg.f64(first + 19), FarFromUnimodal: dg.boolean(first + 20)}
 			}
 			d.States = append(d.States, sc)
 			dg.advance()
@@ -545,11 +560,11 @@ func allOrNone(v []float64, nulls int) ([]float64, error) {
 }
 
 func momentsFrom(c *cursor, col int) solver.Moments {
-	return solver.Moments{Mean: c.f64(col), Var: c.f64(col + 1), Skew: c.f64(col + 2), Kurt: c.f64(col + 3)}
+	return solver.Moments{Mean: c.value(col), Var: c.value(col + 1), Skew: c.value(col + 2), Kurt: c.value(col + 3)}
 }
 
 func summaryFrom(c *cursor, col int) solver.Summary {
-	return solver.Summary{Mean: c.f64(col), SD: c.f64(col + 1), Skew: c.f64(col + 2), Kurt: c.f64(col + 3), Autocorr: c.f64(col + 4)}
+	return solver.Summary{Mean: c.value(col), SD: c.value(col + 1), Skew: c.value(col + 2), Kurt: c.value(col + 3), Autocorr: c.value(col + 4)}
 }
 
 // Read reads a whole set into memory.

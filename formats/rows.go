@@ -83,6 +83,8 @@ func appendDiagnosticRows(t *tableWriter, r *Record, d *solver.Diagnostics, v *V
 	point, age, base, state := t.i32(0), t.i32(1), t.boolean(2), t.i32(3)
 	stat, matched := t.f64(4+dim), t.i32(5+dim)
 	first := 6 + dim
+	names := diagnosticMomentColumns()
+	reasons := nullReasons{table: TableDiagnostics}
 	for i, s := range d.States {
 		point.Append(int32(r.Point))
 		age.Append(int32(r.Age))
@@ -95,7 +97,7 @@ func appendDiagnosticRows(t *tableWriter, r *Record, d *solver.Diagnostics, v *V
 		matched.Append(int32(s.Matched))
 		for g, m := range []solver.Moments{s.Chain, s.True, s.AbsErr, s.RelErr} {
 			for k, x := range momentValues(m) {
-				t.f64(first + 4*g + k).Append(x)
+				reasons.f64(t.f64(first+4*g+k), names[4*g+k], x)
 			}
 		}
 		if v == nil {
@@ -105,6 +107,19 @@ func appendDiagnosticRows(t *tableWriter, r *Record, d *solver.Diagnostics, v *V
 			t.f64(first + 16).Append(v.MeanErr[i])
 			t.f64(first + 17).Append(v.CovErr[i])
 		}
+		if s.PriorKL == nil {
+			t.f64(first + 18).AppendNull()
+		} else {
+			reasons.f64(t.f64(first+18), ColPriorKL, *s.PriorKL)
+		}
+		if s.Shape == nil {
+			t.f64(first + 19).AppendNull()
+			t.boolean(first + 20).AppendNull()
+		} else {
+			t.f64(first + 19).Append(s.Shape.StrandedMass)
+			t.boolean(first + 20).Append(s.Shape.FarFromUnimodal)
+		}
+		reasons.flush(t.str(first + 21))
 		if err := t.endRow(); err != nil {
 			return err
 		}
@@ -139,14 +154,17 @@ func appendSummaryRow(t *tableWriter, r *Record, d *solver.Diagnostics, v *Vecto
 	}
 	t.i32(6).Append(int32(d.Fallbacks))
 	col := 7
+	names := summaryMomentColumns()
+	reasons := nullReasons{table: TableSummary}
+	var values []float64
 	for _, s := range []solver.Summary{d.Chain, d.True} {
-		for _, v := range summaryValues(s) {
-			t.f64(col).Append(v)
-			col++
-		}
+		v := summaryValues(s)
+		values = append(values, v[:]...)
 	}
-	for _, v := range momentValues(d.WorstRelErr) {
-		t.f64(col).Append(v)
+	worst := momentValues(d.WorstRelErr)
+	values = append(values, worst[:]...)
+	for k, x := range values {
+		reasons.f64(t.f64(col), names[k], x)
 		col++
 	}
 	if d.StationaryErr == "" {
@@ -155,6 +173,14 @@ func appendSummaryRow(t *tableWriter, r *Record, d *solver.Diagnostics, v *Vecto
 		t.str(col).Append(d.StationaryErr)
 	}
 	appendVectorSummary(t, col+1, v, dim)
+	col += 1 + summaryVecColumns(dim)
+	if d.Degenerate == "" {
+		t.str(col).AppendNull()
+	} else {
+		t.str(col).Append(d.Degenerate)
+	}
+	t.i32(col + 1).Append(int32(d.FarFromUnimodal))
+	reasons.flush(t.str(col + 2))
 	return t.endRow()
 }
 

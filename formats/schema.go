@@ -27,6 +27,15 @@ const (
 	ColQuantity    = "quantity"
 	ColCoordinate  = "coordinate"
 	ColDerivative  = "derivative"
+	// Row shape and degenerate chains (issue 10).
+	ColPriorKL         = "prior_kl"
+	ColStranded        = "stranded_mass"
+	ColFarFromUnimodal = "far_from_unimodal"
+	ColFarStates       = "far_from_unimodal_states"
+	ColDegenerate      = "degenerate"
+	// ColNullReasons says why the value columns of a row that are null
+	// have no finite value.
+	ColNullReasons = "null_reasons"
 )
 
 // Quantities of the sensitivities table: what a row differentiates.
@@ -47,6 +56,38 @@ var momentNames = [4]string{"mean", "variance", "skewness", "kurtosis"}
 
 // summaryNames are the unconditional moments in column order.
 var summaryNames = [5]string{"mean", "sd", "skewness", "kurtosis", "autocorrelation"}
+
+// diagnosticMomentColumns names the 16 moment columns of the diagnostics
+// table in order: chain_*, true_*, *_err, *_err_scaled.
+func diagnosticMomentColumns() []string {
+	var out []string
+	for _, prefix := range []string{"chain_", "true_"} {
+		for _, m := range momentNames {
+			out = append(out, prefix+m)
+		}
+	}
+	for _, suffix := range []string{"_err", "_err_scaled"} {
+		for _, m := range momentNames {
+			out = append(out, m+suffix)
+		}
+	}
+	return out
+}
+
+// summaryMomentColumns names the 14 moment columns of the summary table
+// in order: chain_*, true_*, worst_*_err_scaled.
+func summaryMomentColumns() []string {
+	var out []string
+	for _, prefix := range []string{"chain_", "true_"} {
+		for _, m := range summaryNames {
+			out = append(out, prefix+m)
+		}
+	}
+	for _, m := range momentNames {
+		out = append(out, "worst_"+m+"_err_scaled")
+	}
+	return out
+}
 
 func field(name string, t arrow.DataType, nullable bool) arrow.Field {
 	return arrow.Field{Name: name, Type: t, Nullable: nullable}
@@ -89,28 +130,18 @@ func schemaFor(table string, dim int, params []string) *arrow.Schema {
 			field(ColBaseline, boolean, false), field(ColState, i32, false)}
 		fs = append(fs, levelFields(dim)...)
 		fs = append(fs, field(ColStationary, f64, true), field(ColMatched, i32, false))
-		for _, prefix := range []string{"chain_", "true_"} {
-			for _, m := range momentNames {
-				fs = append(fs, field(prefix+m, f64, false))
-			}
-		}
-		for _, suffix := range []string{"_err", "_err_scaled"} {
-			for _, m := range momentNames {
-				fs = append(fs, field(m+suffix, f64, false))
-			}
+		for _, name := range diagnosticMomentColumns() {
+			fs = append(fs, field(name, f64, true))
 		}
 		fs = append(fs, field(ColVecMeanErr, f64, true), field(ColVecCovErr, f64, true))
+		fs = append(fs, field(ColPriorKL, f64, true), field(ColStranded, f64, true), field(ColFarFromUnimodal, boolean, true),
+			field(ColNullReasons, str, true))
 	case TableSummary:
 		fs = []arrow.Field{field(ColPoint, i32, false), field(ColAge, i32, false),
 			field(ColBaseline, boolean, false), field(ColMethod, str, false),
 			field("states", i32, false), field("moments", i32, true), field("fallbacks", i32, false)}
-		for _, prefix := range []string{"chain_", "true_"} {
-			for _, m := range summaryNames {
-				fs = append(fs, field(prefix+m, f64, false))
-			}
-		}
-		for _, m := range momentNames {
-			fs = append(fs, field("worst_"+m+"_err_scaled", f64, false))
+		for _, name := range summaryMomentColumns() {
+			fs = append(fs, field(name, f64, true))
 		}
 		fs = append(fs, field("stationary_error", str, true))
 		fs = append(fs, field(ColWorstVecMeanErr, f64, true), field(ColWorstVecCovErr, f64, true), field(ColStationaryCovErr, f64, true))
@@ -126,6 +157,7 @@ func schemaFor(table string, dim int, params []string) *arrow.Schema {
 				}
 			}
 		}
+		fs = append(fs, field(ColDegenerate, str, true), field(ColFarStates, i32, false), field(ColNullReasons, str, true))
 	case TableSensitivities:
 		fs = []arrow.Field{field(ColPoint, i32, false), field(ColAge, i32, false),
 			field(ColParameter, str, false), field(ColQuantity, str, false), field(ColState, i32, false),

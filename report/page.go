@@ -11,6 +11,7 @@ import (
 
 	"gridstage/internal/version"
 	"gridstage/report/figures"
+	"gridstage/solver"
 )
 
 // Options tune a report. The zero value is ready to use.
@@ -378,8 +379,9 @@ func summaryRow(pt Point, c Chain, v Verdict, anchor string, charted bool) rowVi
 func thresholdText() []string {
 	return []string{
 		fmt.Sprintf("Sound: every state matches every requested conditional moment (error below %.0e in standardized units), the long-run standard deviation is within %.0f%% of the process's and the first-order autocorrelation within %.2f.", figures.MatchTolerance, 100*sdCaution, autocorrCaution),
-		fmt.Sprintf("Use with care: some states fell back to fewer moments, or the long-run standard deviation is off by %.0f–%.0f%%, or the autocorrelation by %.2f–%.2f.", 100*sdCaution, 100*sdUnfit, autocorrCaution, autocorrUnfit),
+		fmt.Sprintf("Use with care: some states fell back to fewer moments, or have rows far from unimodal (at least %g of the probability beyond a valley: a point below %g times a probability farther from the row's mode), or the chain is degenerate but keeps a unique stationary distribution, or the long-run standard deviation is off by %.0f–%.0f%%, or the autocorrelation by %.2f–%.2f.", solver.StrandedFlag, solver.ValleyRatio, 100*sdCaution, 100*sdUnfit, autocorrCaution, autocorrUnfit),
 		fmt.Sprintf("Do not use: the matrix is not a valid transition matrix, has no unique stationary distribution, claims moments it does not match, or misses the long-run standard deviation by more than %.0f%% or the autocorrelation by more than %.2f.", 100*sdUnfit, autocorrUnfit),
+		"n/a: the number has no finite value (the skewness or kurtosis of a row with all its mass on one point, or a moment the process's law does not have, such as the kurtosis of Student's t with ν ≤ 4).",
 	}
 }
 
@@ -394,7 +396,7 @@ func short(h string) string {
 // notation below.
 func sci(v float64) string {
 	switch {
-	case math.IsNaN(v):
+	case math.IsNaN(v) || math.IsInf(v, 0):
 		return "n/a"
 	case v == 0:
 		return "0"
@@ -413,7 +415,7 @@ func zeroBelow(v, tol float64) float64 {
 }
 
 func num(v float64) string {
-	if math.IsNaN(v) {
+	if math.IsNaN(v) || math.IsInf(v, 0) {
 		return "n/a"
 	}
 	return fmt.Sprintf("%.4g", v)

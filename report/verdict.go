@@ -90,6 +90,14 @@ func assess(c figures.Case, age bool) Verdict {
 		v.flag(Caution, "%d of %d states could not match all %d requested moments and fell back (to as few as %d); see the error figure.",
 			k, c.Chain.States(), c.Chain.Moments, least)
 	}
+	if k, worst, at, mass := farFromUnimodal(d); k > 0 {
+		where := ""
+		if mass >= 0 && !age {
+			where = fmt.Sprintf(" These states hold %.2g of the stationary mass.", mass)
+		}
+		v.flag(Caution, "%d state(s) have rows far from unimodal: up to %.2g of the probability (state %d) lies beyond a valley, a point below %g times a probability farther out, so the chain jumps where the process does not.%s",
+			k, worst, at, solver.ValleyRatio, where)
+	}
 	if k, worst, moment := falseMatches(d); k > 0 {
 		v.flag(Unfit, "In %s a moment recorded as matched is off by up to %.2g (standardized, %s), above the tolerance %.0e.",
 			plural.Count(k, "state", "states"), worst, moment, figures.MatchTolerance)
@@ -127,6 +135,29 @@ func overUnder(rel float64) string {
 		return "understated"
 	}
 	return "overstated"
+}
+
+// farFromUnimodal counts the states whose rows are far from unimodal
+// (solver.RowShape) and returns the largest stranded mass, its state and
+// the stationary mass of the flagged states (−1 when the chain has no
+// stationary distribution).
+func farFromUnimodal(d *solver.Diagnostics) (states int, worst float64, at int, mass float64) {
+	if d.Stationary == nil {
+		mass = -1
+	}
+	for i, st := range d.States {
+		if st.Shape == nil || !st.Shape.FarFromUnimodal {
+			continue
+		}
+		states++
+		if st.Shape.StrandedMass > worst {
+			worst, at = st.Shape.StrandedMass, i
+		}
+		if d.Stationary != nil {
+			mass += d.Stationary[i]
+		}
+	}
+	return states, worst, at, mass
 }
 
 // falseMatches counts the states where a moment the chain records as

@@ -18,10 +18,17 @@ func TestAssess(t *testing.T) {
 		// Rouwenhorst reproduces the stationary s.d. and the
 		// autocorrelation exactly (Kopecky and Suen 2010).
 		{"rouwenhorst", 0.95, solver.Settings{States: 9, Method: solver.Rouwenhorst}, Sound, ""},
-		// Every state feasible at ρ = 0.5 with 9 states (the solver's record).
-		{"maxent sound", 0.5, solver.Settings{States: 9}, Sound, ""},
+		// Mean and variance are feasible in every state at ρ = 0.5 with 9
+		// states, and every row is unimodal.
+		{"maxent sound", 0.5, solver.Settings{States: 9, Moments: 2}, Sound, ""},
+		// With four moments the edge rows end in a spike: row 0 reads
+		// … 0.0003 0.0001 0.0016, a jump across the grid.
+		{"maxent edge spike", 0.5, solver.Settings{States: 9}, Caution, "up to 0.0016 of the probability (state 0)"},
 		// Two edge states fall back at ρ = 0.9 with 9 states.
 		{"maxent fallback", 0.9, solver.Settings{States: 9}, Caution, "fell back"},
+		// examples/wage-risk.yaml at ρ 0.9 (σ scales out): row 0 has two
+		// separated peaks, 0.4220 and 0.4897 (issue 10).
+		{"maxent far from unimodal", 0.9, solver.Settings{States: 25}, Caution, "rows far from unimodal: up to 0.42 of the probability (state 0)"},
 		// Tauchen-Hussey understates the stationary s.d. badly at ρ = 0.99
 		// (Flodén 2008, Table 1 shows the failure growing with ρ).
 		{"tauchen-hussey", 0.99, solver.Settings{States: 5, Method: solver.TauchenHussey}, Unfit, "standard deviation is understated"},

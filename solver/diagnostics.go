@@ -79,6 +79,10 @@ func Diagnose(c *Chain, truth Truth) Diagnostics {
 	n := c.States()
 	d := Diagnostics{Method: c.Method.String(), States: make([]StateCheck, n), Fallbacks: c.Fallbacks()}
 	x := func(j int) float64 { return c.Grid[j*c.Dim] }
+	var rows *shaper
+	if c.Dim == 1 {
+		rows = newShaper(c.Grid)
+	}
 	for i := 0; i < n; i++ {
 		row := c.Row(i)
 		cm := weightedMoments(row, x)
@@ -90,7 +94,7 @@ func Diagnose(c *Chain, truth Truth) Diagnostics {
 			Level: append([]float64(nil), c.State(i)...), Chain: cm, True: tm,
 			AbsErr: abs, RelErr: rel, Matched: c.Matched[i], Certificate: c.Certificate(i),
 		}
-		d.States[i].PriorKL, d.States[i].Shape = rowDiagnostics(c, i)
+		d.States[i].PriorKL, d.States[i].Shape = rowDiagnostics(c, rows, i)
 		if sh := d.States[i].Shape; sh != nil && sh.FarFromUnimodal {
 			d.FarFromUnimodal++
 		}
@@ -126,17 +130,17 @@ func Diagnose(c *Chain, truth Truth) Diagnostics {
 }
 
 // rowDiagnostics returns the prior divergence and the shape of row i
-// (each nil where it does not apply).
-func rowDiagnostics(c *Chain, i int) (*float64, *RowShape) {
+// (each nil where it does not apply: rows nil for vector chains).
+func rowDiagnostics(c *Chain, rows *shaper, i int) (*float64, *RowShape) {
 	var kl *float64
 	if c.PriorKL != nil {
 		v := c.PriorKL[i]
 		kl = &v
 	}
-	if c.Dim != 1 {
+	if rows == nil {
 		return kl, nil
 	}
-	sh := Shape(c.Row(i), c.Grid)
+	sh := rows.shape(c.Row(i))
 	return kl, &sh
 }
 

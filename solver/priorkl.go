@@ -14,7 +14,11 @@ import "math"
 
 // rowKL returns KL(row ‖ q) for the unnormalized log prior logq: terms
 // with row[j] = 0 contribute 0 (the limit of p log p), and a positive
-// probability where the prior is zero gives +Inf.
+// probability where the prior is zero gives +Inf. To spare a logarithm
+// and an exponential per point where they cannot matter, prior weights
+// below e^−60 of the largest are left out of the normalization (a
+// relative change below n·1e-26) and p log p is dropped for p < 1e-30
+// (each such term is above −7e-29); the term −p log q̂ is always kept.
 func rowKL(logq, row []float64) float64 {
 	top := math.Inf(-1)
 	for _, a := range logq {
@@ -22,13 +26,18 @@ func rowKL(logq, row []float64) float64 {
 	}
 	var z float64
 	for _, a := range logq {
-		z += math.Exp(a - top)
+		if a-top > -60 {
+			z += math.Exp(a - top)
+		}
 	}
 	logZ := top + math.Log(z)
 	var kl float64
 	for j, p := range row {
-		if p > 0 {
+		switch {
+		case p >= 1e-30:
 			kl += p * (math.Log(p) - (logq[j] - logZ))
+		case p > 0:
+			kl -= p * (logq[j] - logZ)
 		}
 	}
 	// Rounding can leave a tiny negative number for a row equal to its prior.
@@ -36,12 +45,19 @@ func rowKL(logq, row []float64) float64 {
 }
 
 // scalarPriorKL returns each row's divergence from the prior of
-// maxentRows on the same nodes, weights and conditional law.
+// maxentRows on the same nodes, weights and conditional law. On a
+// symmetric problem the rows and priors of states i and m−1−i are
+// mirrors (maxentRows copies them), so one half is computed and copied.
 func scalarPriorKL(nodes, logW []float64, law conditional, trans []float64) []float64 {
-	n := len(nodes)
+	n, m := len(nodes), len(law.Mean)
 	logq := make([]float64, n)
-	kl := make([]float64, len(law.Mean))
+	kl := make([]float64, m)
+	mirror := m == n && scalarMirror(nodes, logW, law)
 	for i := range law.Mean {
+		if mirror && i > (m-1)/2 {
+			kl[i] = kl[m-1-i]
+			continue
+		}
 		for j, x := range nodes {
 			z := (x - law.Mean[i]) / law.SD[i]
 			if law.Shock == nil {
@@ -55,18 +71,53 @@ func scalarPriorKL(nodes, logW []float64, law conditional, trans []float64) []fl
 	return kl
 }
 
-// vectorPriorKL does the same for maxentVectorRows.
+// vectorPriorKL does the same for maxentVectorRows, whose prior in state
+// i is log q_ij = log w_j − |L⁻¹(x_j − m_i)|²/2 (fillState). L⁻¹ is
+// linear, so L⁻¹x_j and L⁻¹m_i are solved once each and every pair costs
+// d subtractions, not a triangular solve.
 func vectorPriorKL(grid, logW []float64, law gaussianVectorLaw, trans []float64) []float64 {
 	d, n := law.d, len(logW)
+	from := len(law.means) / d
+	y := whiten(law.chol, d, grid)
+	c := whiten(law.chol, d, law.means)
 	logq := make([]float64, n)
-	dev := make([]float64, n*vectorMomentCount(1, d))
-	e, z := make([]float64, d), make([]float64, d)
-	kl := make([]float64, len(law.means)/d)
+	kl := make([]float64, from)
+	// Mirror states (vectorMirror, as maxentVectorRows) share a divergence.
+	mirror := from == n && vectorMirror(grid, logW, law.means, d)
 	for i := range kl {
-		law.fillState(i, grid, logW, 1, logq, dev, e, z)
+		if mirror && i > (from-1)/2 {
+			kl[i] = kl[from-1-i]
+			continue
+		}
+		ci := c[i*d : (i+1)*d]
+		for j := 0; j < n; j++ {
+			var q float64
+			for k, v := range y[j*d : (j+1)*d] {
+				e := v - ci[k]
+				q += e * e
+			}
+			logq[j] = logW[j] - q/2
+		}
 		kl[i] = rowKL(logq, trans[i*n:(i+1)*n])
 	}
 	return kl
+}
+
+// whiten returns L⁻¹v for each d-vector v of vs (row-major), with L the
+// d×d lower-triangular chol, by forward substitution.
+func whiten(chol []float64, d int, vs []float64) []float64 {
+	out := make([]float64, len(vs))
+	for off := 0; off < len(vs); off += d {
+		v, z := vs[off:off+d], out[off:off+d]
+		for r := 0; r < d; r++ {
+			s := v[r]
+			for k := 0; k < r; k++ {
+				s -= chol[r*d+k] * z[k]
+			}
+			z[r] = s / chol[r*d+r]
+		}
+	}
+	return out
 }
 
 // sumKL returns a[i] + b[k] for the product state (i, k), b varying

@@ -42,14 +42,29 @@ type RowShape struct {
 // one, and a row with mass far out behind near-zero probabilities
 // strands that mass.
 func Shape(p, x []float64) RowShape {
-	n := len(p)
+	return newShaper(x).shape(p)
+}
+
+// shaper tests rows on one set of levels: the order of the levels is
+// found once, and the buffers are reused from row to row.
+type shaper struct {
+	order     []int     // point indices by increasing level
+	q, beyond []float64 // scratch: the row in level order; running maxima
+}
+
+func newShaper(x []float64) *shaper {
+	n := len(x)
 	order := make([]int, n)
 	for j := range order {
 		order[j] = j
 	}
 	sort.SliceStable(order, func(a, b int) bool { return x[order[a]] < x[order[b]] })
-	q := make([]float64, n)
-	for k, j := range order {
+	return &shaper{order: order, q: make([]float64, n), beyond: make([]float64, n+1)}
+}
+
+func (s *shaper) shape(p []float64) RowShape {
+	q := s.q
+	for k, j := range s.order {
 		q[k] = p[j]
 	}
 	mode := 0
@@ -58,31 +73,32 @@ func Shape(p, x []float64) RowShape {
 			mode = k
 		}
 	}
-	stranded := strandedSide(q[mode+1:])
-	left := make([]float64, mode)
-	for k := range left {
-		left[k] = q[mode-1-k]
-	}
-	stranded += strandedSide(left)
+	stranded := s.strandedSide(mode, 1) + s.strandedSide(mode, -1)
 	return RowShape{StrandedMass: stranded, FarFromUnimodal: stranded >= StrandedFlag}
 }
 
-// strandedSide returns the mass beyond the innermost valley of one side
-// of a row, side[0] being the point next to the mode.
-func strandedSide(side []float64) float64 {
-	n := len(side)
-	// beyond[k] = max of side[k+1:], built from the outside in.
-	beyond := make([]float64, n+1)
-	for k := n - 1; k >= 0; k-- {
-		beyond[k] = max(beyond[k+1], side[k])
+// strandedSide returns the mass beyond the innermost valley on one side
+// of the mode (step +1: higher levels; −1: lower levels).
+func (s *shaper) strandedSide(mode, step int) float64 {
+	q, beyond := s.q, s.beyond
+	end := len(q)
+	if step < 0 {
+		end = -1
 	}
-	for k := 0; k < n; k++ {
-		if side[k] < ValleyRatio*beyond[k+1] {
-			var s float64
-			for _, v := range side[k+1:] {
-				s += v
+	// beyond[k] = max of q over the points beyond k on this side,
+	// built from the outside in.
+	best := 0.0
+	for k := end - step; k != mode; k -= step {
+		beyond[k] = best
+		best = max(best, q[k])
+	}
+	for k := mode + step; k != end; k += step {
+		if q[k] < ValleyRatio*beyond[k] {
+			var sum float64
+			for j := k + step; j != end; j += step {
+				sum += q[j]
 			}
-			return s
+			return sum
 		}
 	}
 	return 0

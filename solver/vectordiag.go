@@ -83,7 +83,7 @@ func DiagnoseVector(c *Chain, truth VectorTruth) VectorDiagnostics {
 			sc.Matched = c.Matched[i]
 			sc.Certificate = c.Certificate(i)
 		}
-		sc.PriorKL, _ = rowDiagnostics(c, i)
+		sc.PriorKL, _ = rowDiagnostics(c, nil, i)
 		for k := 0; k < d; k++ {
 			diff[k] = cm.Mean[k] - tm.Mean[k]
 		}

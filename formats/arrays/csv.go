@@ -5,6 +5,7 @@ import (
 	"bytes"
 	"fmt"
 	"io"
+	"math"
 	"os"
 	"strconv"
 	"strings"
@@ -37,8 +38,15 @@ func newWideCSV(path, scratch string, keys []string, prefix string) (*wideCSV, e
 }
 
 // cell renders a number exactly: the shortest decimal that reads back as
-// the same float64 (strconv's 'g' with precision −1).
-func cell(v float64) string { return strconv.FormatFloat(v, 'g', -1, 64) }
+// the same float64 (strconv's 'g' with precision −1). A number with no
+// finite value (a null of the tables, see docs/FORMATS.md) is an empty
+// field, never "NaN" or "+Inf".
+func cell(v float64) string {
+	if math.IsNaN(v) || math.IsInf(v, 0) {
+		return ""
+	}
+	return strconv.FormatFloat(v, 'g', -1, 64)
+}
 
 // add writes one row: the key fields, then the values (an empty string is
 // an empty field). No field may hold a comma, a quote or a newline: every
