@@ -117,7 +117,7 @@ func Run(ctx context.Context, m *manifests.Manifest, opt Options) (*Result, erro
 	}
 	dir := opt.Out
 	if dir == "" {
-		dir = m.OutputDir()
+		dir = m.OutputDir("")
 	}
 	if err := prepareOutputFolder(dir); err != nil {
 		return nil, err

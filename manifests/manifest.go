@@ -64,17 +64,20 @@ type Process struct {
 	Jobs []int
 }
 
-// OutputDir returns the output folder resolved against the manifest's
-// folder.
-func (m *Manifest) OutputDir() string {
+// OutputDir returns the output folder: an absolute folder as it is, a
+// relative one beneath root, the output root ("" is the current folder).
+// Output never goes beside the manifest, which may sit among sources
+// (README, "Where output goes").
+func (m *Manifest) OutputDir(root string) string {
 	if filepath.IsAbs(m.Output.Folder) {
 		return m.Output.Folder
 	}
-	return filepath.Join(m.Dir, m.Output.Folder)
+	return filepath.Join(root, m.Output.Folder)
 }
 
-// Load reads and validates the manifest at path. Relative paths inside it
-// (draw tables, the output folder) are resolved against its folder. Errors
+// Load reads and validates the manifest at path. Relative paths of its
+// inputs (draw tables) are resolved against its folder; the output folder
+// against the output root (OutputDir). Errors
 // about the manifest are an ErrorList.
 func Load(path string) (*Manifest, error) {
 	// A FIFO or device would block the open or never end: refuse anything

@@ -80,8 +80,14 @@ func TestGoodManifests(t *testing.T) {
 func TestOutput(t *testing.T) {
 	toRoot(t)
 	m := loadGood(t, "testdata/manifests/good/methods.yaml")
-	if m.Output.Format != FormatArrow || m.OutputDir() != filepath.Join("testdata", "manifests", "good", "out", "methods") {
-		t.Errorf("output %+v in %s", m.Output, m.OutputDir())
+	// The output folder lies beneath the output root, not beside the
+	// manifest; an absolute one is kept.
+	if m.Output.Format != FormatArrow || m.OutputDir("/srv/results") != filepath.Join("/srv/results", "out", "methods") || m.OutputDir("") != filepath.Join("out", "methods") {
+		t.Errorf("output %+v in %s", m.Output, m.OutputDir("/srv/results"))
+	}
+	m.Output.Folder = "/abs/out"
+	if m.OutputDir("/srv/results") != "/abs/out" {
+		t.Errorf("absolute output folder resolved to %s", m.OutputDir("/srv/results"))
 	}
 	m = loadGood(t, "testdata/manifests/good/minimal.yaml")
 	if m.Output.Format != FormatParquet || m.Output.Folder != "minimal" {

@@ -74,7 +74,7 @@ stages:
         params: {k: 2}
 ` + extra
 	os.WriteFile(filepath.Join(dir, "p.yaml"), []byte(text), 0o644)
-	s, err := Load(filepath.Join(dir, "p.yaml"))
+	s, err := Load(filepath.Join(dir, "p.yaml"), dir)
 	if err != nil {
 		t.Fatal(err)
 	}

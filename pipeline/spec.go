@@ -20,7 +20,7 @@ import (
 //
 //	name: harbour-wages            # pipeline name, recorded in the ledger
 //	manifest: wages.yaml           # the run manifest the grid stage runs
-//	out: out/harbour-wages         # folder for chains and estimates
+//	out: out/harbour-wages         # folder for chains and estimates, beneath the output root
 //	ledger: out/lineage.parquet    # lineage ledger (default: <out>/lineage.parquet)
 //	timeout: 2m                    # limit for each call to a stage (default 10m)
 //	start_timeout: 30s             # limit for a stage's handshake (default 30s)
@@ -39,9 +39,11 @@ import (
 //	    version: "2.1"                 # optional; default: a digest of the command's files
 //	    estimates: [...]
 //
-// Relative paths (manifest, out, ledger, and commands whose first word
-// contains a slash) are resolved against the pipeline file's folder, which
-// is also every stage's working folder.
+// Relative input paths (manifest, and commands whose first word contains a
+// slash) are resolved against the pipeline file's folder, which is also
+// every stage's working folder; relative output paths (out, ledger)
+// beneath the output root, as a manifest's output folder is (README,
+// "Where output goes").
 type Spec struct {
 	File, Dir    string // where the pipeline file was read, for messages and paths
 	Name         string
@@ -105,8 +107,9 @@ func (e *SpecError) Error() string {
 	return pos + ": " + e.Field + ": " + e.Msg
 }
 
-// Load reads the pipeline file at path.
-func Load(path string) (*Spec, error) {
+// Load reads the pipeline file at path; outputRoot is the folder its
+// relative output paths lie beneath ("" is the current folder).
+func Load(path, outputRoot string) (*Spec, error) {
 	b, err := os.ReadFile(path)
 	if err != nil {
 		return nil, &SpecError{File: path, Msg: "cannot read the pipeline file: " + err.Error()}
@@ -115,12 +118,17 @@ func Load(path string) (*Spec, error) {
 	if err != nil {
 		return nil, err
 	}
-	return Parse(bytes.NewReader(b), path, filepath.Dir(abs))
+	root, err := filepath.Abs(outputRoot)
+	if err != nil {
+		return nil, err
+	}
+	return Parse(bytes.NewReader(b), path, filepath.Dir(abs), root)
 }
 
-// Parse reads a pipeline file from r; name labels errors and dir is the
-// folder relative paths resolve against.
-func Parse(r io.Reader, name, dir string) (*Spec, error) {
+// Parse reads a pipeline file from r; name labels errors, dir is the
+// folder relative input paths resolve against and outputRoot the one
+// relative output paths do.
+func Parse(r io.Reader, name, dir, outputRoot string) (*Spec, error) {
 	b, err := io.ReadAll(io.LimitReader(r, 1<<20+1))
 	if err != nil {
 		return nil, &SpecError{File: name, Msg: "cannot read the pipeline file: " + err.Error()}
@@ -177,11 +185,11 @@ func Parse(r io.Reader, name, dir string) (*Spec, error) {
 		seen[st.Name] = i
 	}
 	s.Manifest = resolve(dir, s.Manifest)
-	s.Out = resolve(dir, out)
+	s.Out = resolve(outputRoot, out)
 	if ledger == "" {
 		s.Ledger = filepath.Join(s.Out, "lineage.parquet")
 	} else {
-		s.Ledger = resolve(dir, ledger)
+		s.Ledger = resolve(outputRoot, ledger)
 	}
 	for i := range s.Stages {
 		s.Stages[i].Command[0] = resolveCommand(dir, s.Stages[i].Command[0])

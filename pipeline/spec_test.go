@@ -25,12 +25,20 @@ stages:
       - model: burnside
         params: {beta: 0.95, theta: -1.5}
 `
-	s, err := Parse(strings.NewReader(text), "p.yaml", "/srv/pipes")
+	s, err := Parse(strings.NewReader(text), "p.yaml", "/srv/pipes", "/srv/results")
 	if err != nil {
 		t.Fatal(err)
 	}
 	if s.Manifest != "/srv/pipes/m/wages.yaml" || s.Out != "/abs/out" || s.Ledger != "/abs/out/lineage.parquet" {
 		t.Errorf("paths: %s, %s, %s", s.Manifest, s.Out, s.Ledger)
+	}
+	// Relative outputs lie beneath the output root, inputs beside the file.
+	rel, err := Parse(strings.NewReader(strings.Replace(text, "out: /abs/out", "out: out/harbour\nledger: ledgers/l.parquet", 1)), "p.yaml", "/srv/pipes", "/srv/results")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if rel.Manifest != "/srv/pipes/m/wages.yaml" || rel.Out != "/srv/results/out/harbour" || rel.Ledger != "/srv/results/ledgers/l.parquet" {
+		t.Errorf("relative paths: %s, %s, %s", rel.Manifest, rel.Out, rel.Ledger)
 	}
 	if s.Timeout != 90*time.Second || s.StartTimeout != DefaultStartTimeout || s.Grid != nil {
 		t.Errorf("timeouts %v %v, grid %v", s.Timeout, s.StartTimeout, s.Grid)
@@ -63,7 +71,7 @@ func TestParseSpecErrors(t *testing.T) {
 		{head + "stages: {}\n", "p.yaml:4:9: stages: want a list of stages"},
 	}
 	for _, tc := range cases {
-		_, err := Parse(strings.NewReader(tc.text), "p.yaml", "/d")
+		_, err := Parse(strings.NewReader(tc.text), "p.yaml", "/d", "/r")
 		if err == nil || !strings.HasPrefix(err.Error(), tc.want) {
 			t.Errorf("input:\n%s\nerr  = %v\nwant prefix %q", tc.text, err, tc.want)
 		}

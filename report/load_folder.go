@@ -202,16 +202,18 @@ func (b *jobBuilder) add(rec formats.Record) error {
 
 // lawOf rebuilds the process from its canonical spec to learn what the
 // figures need beyond the stored diagnostics: whether the stationary law
-// is exactly normal, and a vector process's stationary covariance. A spec
-// this build cannot parse gives a law with only the stored moments.
-func lawOf(spec []byte) figures.Law {
+// is exactly normal, a vector process's stationary covariance, and the
+// process itself when it is a vector one (for the checks of each
+// coordinate). A spec this build cannot parse gives a law with only the
+// stored moments and no process.
+func lawOf(spec []byte) (figures.Law, solver.VectorTruth) {
 	job, err := manifests.ParseSpec(spec)
 	if err != nil {
-		return figures.Law{}
+		return figures.Law{}, nil
 	}
 	p, err := job.Build()
 	if err != nil {
-		return figures.Law{}
+		return figures.Law{}, nil
 	}
 	var l figures.Law
 	if ar, ok := p.Model.(solver.AR1); ok {
@@ -224,7 +226,8 @@ func lawOf(spec []byte) figures.Law {
 		l.MeanVec, l.Cov = v.StationaryMean(), v.StationaryCov()
 		l.Gaussian = true
 	}
-	return l
+	truth, _ := p.Model.(solver.VectorTruth)
+	return l, truth
 }
 
 // runRecordChecks reads run.json, which `gridstage run` writes beside the

@@ -6,6 +6,7 @@ import (
 	"strings"
 
 	"gridstage/report/figures"
+	"gridstage/solver"
 )
 
 // Run is one gridstage output as the report shows it.
@@ -151,12 +152,30 @@ func (p Point) ResolveLaws() {
 	if p.Spec == nil {
 		return
 	}
-	l := lawOf(p.Spec)
+	l, truth := lawOf(p.Spec)
 	for i := range p.Chains {
 		c := &p.Chains[i]
 		l.Mean, l.SD = c.Law.Mean, c.Law.SD
 		c.Law = l
+		c.Components = componentChecks(c.Case, truth)
 	}
+}
+
+// componentChecks returns the checks of each coordinate after the first
+// of a vector chain against its process (figures.Case.Components), or nil
+// when the chain is univariate, its diagnostics describe a sum (a
+// life-cycle product's age) or the process is unknown.
+func componentChecks(c figures.Case, truth solver.VectorTruth) []*solver.Diagnostics {
+	ch := c.Chain
+	if truth == nil || ch.Dim < 2 || c.SumDiag || truth.Dim() != ch.Dim || ch.Transition == nil || len(ch.Matched) != ch.States() {
+		return nil
+	}
+	out := make([]*solver.Diagnostics, ch.Dim)
+	for k := 1; k < ch.Dim; k++ {
+		d := solver.ComponentChecks(ch, truth, k)
+		out[k] = &d
+	}
+	return out
 }
 
 // Points counts the sweep points of every job: the jobs of `gridstage

@@ -133,8 +133,8 @@ func (r chainReport) printText(w io.Writer) error {
 		fmt.Fprintf(w, "%s chain, method %s, %d states, no moment matched: each row is the node rule's own weights times the conditional density, normalised (the prior maximum entropy starts from)\n\n",
 			r.Kind, c.Method, n)
 	} else {
-		fmt.Fprintf(w, "%s chain, method %s, %d states, %d moments requested, %d of %d states matched them all\n\n",
-			r.Kind, c.Method, n, c.Moments, n-c.Fallbacks(), n)
+		fmt.Fprintf(w, "%s chain, method %s, %d states, %s requested, %d of %d states matched %s\n\n",
+			r.Kind, c.Method, n, plural.Count(c.Moments, "moment", "moments"), n-c.Fallbacks(), n, plural.Noun(c.Moments, "it", "them all"))
 	}
 	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)
 	fmt.Fprintln(tw, "state\tlevel\tstationary\tmatched\tmean err\tvar err\tskew err\tkurt err\tprior KL\tstranded\t")

@@ -195,13 +195,14 @@ func inspect(w io.Writer, ref formats.SetRef, sel inspectSelection, asJSON bool)
 		if !ok {
 			continue
 		}
+		if sel.point < 0 && sel.where == nil && len(matched) > 0 && rec.Point != matched[0].Point {
+			break // no selection: the first point, which the header names
+		}
 		if len(matched) == 0 || matched[len(matched)-1].Point != rec.Point {
 			matched = append(matched, rec)
 		}
 		if rec.Point == matched[0].Point {
 			kept = append(kept, rec)
-		} else if sel.where == nil {
-			break // the default: the first point
 		}
 	}
 	switch {

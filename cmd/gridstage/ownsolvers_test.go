@@ -52,7 +52,7 @@ func TestOwnSolversExample(t *testing.T) {
 	}
 	dir := t.TempDir()
 	ex := copyExample(t, dir, "own-solvers.yaml", "harbour.yaml", "burnside_files.py", "chain_moments.sh")
-	code, out, errOut := gridstageCmd(bin, "pipeline", filepath.Join(ex, "own-solvers.yaml"), "--json")
+	code, out, errOut := gridstageCmd(bin, "pipeline", filepath.Join(ex, "own-solvers.yaml"), "--json", "--output-root", dir)
 	if code != 0 {
 		t.Fatalf("pipeline exit %d: %s", code, errOut)
 	}
@@ -186,7 +186,7 @@ stages:
       - model: anything
         processes: [productivity]
 `), 0o644)
-		code, _, errOut := gridstageCmd(bin, "pipeline", pipe)
+		code, _, errOut := gridstageCmd(bin, "pipeline", pipe, "--output-root", ex)
 		lines := strings.Split(strings.TrimSpace(errOut), "\n")
 		if code != tc.code || len(lines) != 1 || !strings.Contains(errOut, tc.want) {
 			t.Errorf("%s: exit %d, stderr %q; want exit %d and one line with %q", tc.script, code, errOut, tc.code, tc.want)
@@ -232,7 +232,7 @@ stages:
     estimates:
       - model: check
 `), 0o644)
-	code, out, errOut := gridstageCmd(bin, "pipeline", pipe, "--json")
+	code, out, errOut := gridstageCmd(bin, "pipeline", pipe, "--json", "--output-root", ex)
 	if code != 0 {
 		t.Fatalf("exit %d: %s", code, errOut)
 	}

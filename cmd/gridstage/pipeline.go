@@ -27,6 +27,7 @@ func newPipelineCmd() *cobra.Command {
 	var (
 		timeout, startTimeout time.Duration
 		verbose, asJSON       bool
+		root                  string
 	)
 	cmd := &cobra.Command{
 		Use:   "pipeline PIPELINE.yaml",
@@ -35,10 +36,14 @@ func newPipelineCmd() *cobra.Command {
 the file names, each downstream stage solves its models on the chains, every
 estimate is written to <out>/estimates/<id>.json and the lineage ledger
 records which chain fed which estimate. Stages are any executables speaking
-the stage protocol; each call to a stage is limited by the timeout.`,
+the stage protocol; each call to a stage is limited by the timeout.
+
+The manifest and stage commands named in the file are relative to its
+folder; its out and ledger lie beneath the output root (--output-root, else
+$GRIDSTAGE_OUTPUT_ROOT, else the current folder).`,
 		Args: cobra.ExactArgs(1),
 		RunE: func(cmd *cobra.Command, args []string) error {
-			spec, err := pipeline.Load(args[0])
+			spec, err := pipeline.Load(args[0], outputRoot(root))
 			if err != nil {
 				return badInput("%v", err)
 			}
@@ -76,6 +81,7 @@ the stage protocol; each call to a stage is limited by the timeout.`,
 	fs.DurationVar(&startTimeout, "start-timeout", 0, "limit for a stage's handshake (default: the pipeline file's, else 30s)")
 	fs.BoolVar(&verbose, "verbose", false, "copy every stage's stderr to stderr")
 	fs.BoolVar(&asJSON, "json", false, "print the chains and estimates as one JSON object")
+	outputRootFlag(cmd, &root)
 	cmd.SetContext(context.Background())
 	return cmd
 }

@@ -139,7 +139,7 @@ stages:
 	pipe := filepath.Join(dir, "pipeline.yaml")
 	os.WriteFile(pipe, []byte(text), 0o644)
 
-	code, out, errOut := gridstageCmd(bin, "pipeline", pipe, "--json")
+	code, out, errOut := gridstageCmd(bin, "pipeline", pipe, "--json", "--output-root", dir)
 	if code != 0 {
 		t.Fatalf("pipeline exit %d: %s", code, errOut)
 	}
@@ -262,13 +262,13 @@ func TestPipelineBadInput(t *testing.T) {
 	dir := t.TempDir()
 	pipe := filepath.Join(dir, "p.yaml")
 	os.WriteFile(pipe, []byte("name: x\nmanifest: m.yaml\nout: o\nstages: []\n"), 0o644)
-	code, _, errOut := gridstageCmd(bin, "pipeline", pipe)
+	code, _, errOut := gridstageCmd(bin, "pipeline", pipe, "--output-root", dir)
 	if code != 2 || !strings.Contains(errOut, pipe+":4:9: stages: needs at least one stage") {
 		t.Errorf("empty stages: exit %d, %q", code, errOut)
 	}
 	os.WriteFile(filepath.Join(dir, "m.yaml"), []byte("run: x\nprocesses:\n  - name: a\n    kind: ar1\n    rho: 1.5\n    sigma: 0.1\n"), 0o644)
 	os.WriteFile(pipe, []byte("name: x\nmanifest: m.yaml\nout: o\nstages:\n  - name: s\n    command: [/bin/true]\n    estimates:\n      - model: m\n"), 0o644)
-	code, _, errOut = gridstageCmd(bin, "pipeline", pipe)
+	code, _, errOut = gridstageCmd(bin, "pipeline", pipe, "--output-root", dir)
 	if code != 2 || !strings.Contains(errOut, "m.yaml:5:") || !strings.Contains(errOut, "rho") {
 		t.Errorf("bad manifest: exit %d, %q", code, errOut)
 	}

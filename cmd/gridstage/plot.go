@@ -98,6 +98,9 @@ for VARs and the mass by age for life-cycle chains. One file per figure.`,
 			if n := run.Chains(); sel.Empty() && n > plotAllLimit {
 				return badInput("%s holds %d chains; choose a sweep point with --point N or --where name=value", args[0], n)
 			}
+			if out == "" {
+				out = defaultPlotFolder(args[0])
+			}
 			if err := os.MkdirAll(out, 0o755); err != nil {
 				return fmt.Errorf("cannot create --out folder %s: %w", out, err)
 			}
@@ -111,10 +114,20 @@ for VARs and the mass by age for life-cycle chains. One file per figure.`,
 			return nil
 		},
 	}
-	cmd.Flags().StringVar(&out, "out", "gridstage-plots", "folder for the figure files")
+	cmd.Flags().StringVar(&out, "out", "", "folder for the figure files (default: figures/ in the output folder, or beside a file)")
 	cmd.Flags().StringVar(&format, "format", "png", "image format: png or svg")
 	pf.register(cmd)
 	return cmd
+}
+
+// defaultPlotFolder puts the figures in a figures/ folder inside an output
+// folder, or beside a single file: with the output they draw, never in the
+// current folder, which may hold sources.
+func defaultPlotFolder(path string) string {
+	if info, err := os.Stat(path); err == nil && info.IsDir() {
+		return filepath.Join(path, "figures")
+	}
+	return filepath.Join(filepath.Dir(path), "figures")
 }
 
 // plotPoint writes the figures of one sweep point.

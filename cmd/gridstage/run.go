@@ -30,9 +30,9 @@ func init() { extraCommands = append(extraCommands, newRunCmd) }
 
 func newRunCmd() *cobra.Command {
 	var (
-		out, format, cacheDir, shardFlag, logFormat string
-		workers                                     int
-		force                                       bool
+		out, format, cacheDir, shardFlag, logFormat, root string
+		workers                                           int
+		force                                             bool
 	)
 	cmd := &cobra.Command{
 		Use:   "run MANIFEST [--out DIR]",
@@ -41,6 +41,10 @@ func newRunCmd() *cobra.Command {
 process, Parquet (or Arrow) tables of transitions, states, diagnostics,
 summaries and sweep points, plus run.json listing each job with its spec
 hash, chain hash and status. Exit status 0 only if every job succeeded.
+
+The output goes to --out, else to the manifest's output folder; a relative
+one lies beneath the output root (--output-root, else $GRIDSTAGE_OUTPUT_ROOT,
+else the current folder), never beside the manifest.
 
 Solved jobs are kept in a content-addressed cache (by spec hash), so a
 re-run or a run resumed after a crash solves nothing twice; when the output
@@ -60,6 +64,9 @@ On a Slurm array job the share of jobs is taken from the array variables;
 					return &usageError{msg: err.Error()}
 				}
 				return badInput("%v", err)
+			}
+			if out == "" {
+				out = m.OutputDir(outputRoot(root))
 			}
 			opt := batch.Options{Out: out, Workers: workers, Force: force, Advise: true}
 			if cmd.Flags().Changed("format") {
@@ -134,7 +141,8 @@ On a Slurm array job the share of jobs is taken from the array variables;
 		},
 	}
 	fs := cmd.Flags()
-	fs.StringVar(&out, "out", "", "output folder (default: the manifest's output folder)")
+	fs.StringVar(&out, "out", "", "output folder (default: the manifest's output folder, beneath the output root)")
+	outputRootFlag(cmd, &root)
 	fs.StringVar(&format, "format", "", "output format: parquet or arrow (default: the manifest's, else parquet)")
 	fs.IntVar(&workers, "workers", 0, "cores to use: jobs solved at once, with the output written on the same cores (default: every core)")
 	fs.StringVar(&cacheDir, "cache", "", "cache folder, or off (default: $GRIDSTAGE_CACHE, else the user cache folder)")

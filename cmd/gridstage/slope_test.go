@@ -28,10 +28,10 @@ func TestPipelineSlopeExample(t *testing.T) {
 		t.Fatal(err)
 	}
 	text := strings.Replace(string(pipe), "[../../bin/modelstage]", "["+filepath.Join(bin, "modelstage")+"]", 1)
-	text = strings.Replace(text, "out: ../../out/tessaly-slope", "out: out", 1)
+	text = strings.Replace(text, "out: out/tessaly-slope", "out: out", 1)
 	os.WriteFile(filepath.Join(dir, "orchard.yaml"), manifest, 0o644)
 	os.WriteFile(filepath.Join(dir, "slope.yaml"), []byte(text), 0o644)
-	code, out, errOut := gridstageCmd(bin, "pipeline", filepath.Join(dir, "slope.yaml"), "--json")
+	code, out, errOut := gridstageCmd(bin, "pipeline", filepath.Join(dir, "slope.yaml"), "--json", "--output-root", dir)
 	if code != 0 {
 		t.Fatalf("pipeline exit %d: %s", code, errOut)
 	}

@@ -98,6 +98,10 @@ func TestInspectAmbiguousWhere(t *testing.T) {
 	if code, _, errOut := run(t, "inspect", dir, "--where", "rho=0.7"); code != 2 || !strings.Contains(errOut, "no sweep point of wages matches --where rho=0.7") {
 		t.Errorf("--where matching nothing: exit %d, %q", code, errOut)
 	}
+	// No selection: the first point, named in the header.
+	if code, out, errOut := run(t, "inspect", dir); code != 0 || !strings.Contains(out, "sweep point 0 (3 points in the set)") {
+		t.Errorf("no selection: exit %d\n%s%s", code, out, errOut)
+	}
 }
 
 func TestInspectCommand(t *testing.T) {

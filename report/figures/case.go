@@ -2,6 +2,7 @@ package figures
 
 import (
 	"fmt"
+	"slices"
 
 	"gridstage/solver"
 )
@@ -26,6 +27,14 @@ type Case struct {
 	// SumDiag reports that Diag describes the sum of the state's
 	// coordinates (an age of a life-cycle product), not its first one.
 	SumDiag bool
+	// Components optionally holds, for a vector chain whose Diag describes
+	// its first coordinate, the checks of each coordinate k at index k
+	// (solver.ComponentChecks); each gets an error figure of its own.
+	// Components[0] is unused (Diag is coordinate 0's); nil draws
+	// coordinate 0 only.
+	Components []*solver.Diagnostics
+	// component is the coordinate an error figure draws.
+	component int
 }
 
 // Law is the true stationary law of a process, as far as figures draw it.
@@ -62,6 +71,24 @@ func stationaryOf(c *solver.Chain, d *solver.Diagnostics) ([]float64, error) {
 	}
 	return pi, nil
 }
+
+// independent reports whether every row of the chain's transition matrix
+// is the same distribution, as for an iid law: next period's state does
+// not depend on this period's, and a heat map of the matrix would draw the
+// same row N times.
+func independent(c *solver.Chain) bool {
+	first := c.Row(0)
+	for i := 1; i < c.States(); i++ {
+		if !slices.Equal(c.Row(i), first) {
+			return false
+		}
+	}
+	return true
+}
+
+// independentNote is the sentence the first figure of an independent
+// chain adds to its caption, saying why no heat map follows.
+const independentNote = " The draws are independent over time: every row of the transition matrix is this distribution, so no heat map of the matrix is drawn."
 
 // checkChain panics on a malformed chain: a programmer error, since
 // readers validate shapes before building a Case.

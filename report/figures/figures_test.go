@@ -383,6 +383,47 @@ func TestForChoosesFiguresByShape(t *testing.T) {
 	if got := names(vectorCase(t)); got != "plane flow " {
 		t.Errorf("vector without diagnostics: %q", got)
 	}
+	// An iid law: every row is the same distribution (here binomial(4,
+	// 1/2) on the 5 levels): no heat map, and the mass figure's caption
+	// says why.
+	iid := gaussianCase(t, 5)
+	pi := []float64{1.0 / 16, 4.0 / 16, 6.0 / 16, 4.0 / 16, 1.0 / 16}
+	chain := *iid.Chain
+	chain.Transition = nil
+	for range 5 {
+		chain.Transition = append(chain.Transition, pi...)
+	}
+	iid.Chain, iid.Diag, iid.BaselineDiag = &chain, nil, nil
+	if got := names(iid); got != "mass " {
+		t.Errorf("iid law: %q, want the mass figure only", got)
+	}
+	figs, _ := For(iid)
+	if !strings.Contains(figs[0].Caption, "independent over time") {
+		t.Errorf("iid mass caption: %s", figs[0].Caption)
+	}
+	if figs, _ := For(gaussianCase(t, 5)); strings.Contains(figs[0].Caption, "independent") {
+		t.Errorf("AR(1) mass caption: %s", figs[0].Caption)
+	}
+	// A VAR(1) with the checks of each coordinate: an error figure per
+	// coordinate, each saying which it draws.
+	p := solver.VAR{Coef: []float64{0.9, 0.05, 0.02, 0.8}, Cov: []float64{0.01, 0.002, 0.002, 0.02}}
+	vc, err := p.Discretize(solver.Settings{States: 5})
+	if err != nil {
+		t.Fatal(err)
+	}
+	first, second := solver.Diagnose(vc, p), solver.ComponentChecks(vc, p, 1)
+	v := Case{Label: "firm shocks", Chain: vc, Diag: &first, Components: []*solver.Diagnostics{nil, &second}}
+	if got := names(v); got != "plane flow errors errors-x1 " {
+		t.Errorf("VAR with checks per coordinate: %q", got)
+	}
+	figs, _ = For(v)
+	if figs[2].Title != "Conditional-moment errors by state · x0" || figs[3].Title != "Conditional-moment errors by state · x1" {
+		t.Errorf("error figure titles %q, %q", figs[2].Title, figs[3].Title)
+	}
+	me, _ := MomentErrorsOf(Case{Chain: vc, Diag: &second})
+	if me.Series[0].Abs[0][0] != math.Abs(second.States[0].RelErr.Mean) {
+		t.Errorf("coordinate 1 figure draws %g, its check says %g", me.Series[0].Abs[0][0], second.States[0].RelErr.Mean)
+	}
 }
 
 // deepCopy returns an independent copy of a case's chains and diagnostics.

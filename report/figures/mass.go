@@ -143,10 +143,14 @@ func massFigure(c Case, m Mass) Figure {
 	if !math.IsNaN(m.TotalVariation) {
 		subtitle += fmt.Sprintf(" · total-variation gap to the true law %.2g", m.TotalVariation)
 	}
+	caption := "Bars: the chain's long-run probability of each grid point. Line and rings: the probability the true stationary law puts on each grid cell. Bars that track the line mean the chain reproduces the process's long-run spread."
+	if independent(c.Chain) {
+		caption += independentNote
+	}
 	return Figure{
 		Name:    "mass",
 		Title:   "Stationary distribution on the grid",
-		Caption: "Bars: the chain's long-run probability of each grid point. Line and rings: the probability the true stationary law puts on each grid cell. Bars that track the line mean the chain reproduces the process's long-run spread.",
+		Caption: caption,
 		Width:   16 * vg.Centimeter, Height: 10 * vg.Centimeter,
 		draw: func(dc draw.Canvas) {
 			body := drawHeader(dc, "Stationary distribution · "+c.Label, subtitle)

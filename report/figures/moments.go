@@ -133,15 +133,23 @@ func momentsFigure(c Case, m MomentErrors) Figure {
 	case c.Chain.Dim > 1 && c.SumDiag:
 		sub += fmt.Sprintf(" · errors of the sum of the %d levels", c.Chain.Dim)
 	case c.Chain.Dim > 1:
-		sub += fmt.Sprintf(" · errors of x0, the first of %d levels", c.Chain.Dim)
+		sub += fmt.Sprintf(" · errors of x%d, level %d of %d", c.component, c.component+1, c.Chain.Dim)
+	}
+	name, title, label := "errors", "Conditional-moment errors by state", c.Label
+	if c.Chain.Dim > 1 && !c.SumDiag {
+		title += fmt.Sprintf(" · x%d", c.component)
+		label += fmt.Sprintf(" · x%d", c.component)
+		if c.component > 0 {
+			name = fmt.Sprintf("errors-x%d", c.component)
+		}
 	}
 	return Figure{
-		Name:    "errors",
-		Title:   "Conditional-moment errors by state",
+		Name:    name,
+		Title:   title,
 		Caption: errorsCaption(m),
 		Width:   18 * vg.Centimeter, Height: 14 * vg.Centimeter,
 		draw: func(dc draw.Canvas) {
-			body := drawHeader(dc, "Conditional-moment errors · "+c.Label, sub)
+			body := drawHeader(dc, "Conditional-moment errors · "+label, sub)
 			plots := make([][]*plot.Plot, 2)
 			var keys []key
 			for k := range MomentNames {

@@ -107,10 +107,14 @@ const axisSpan = 2
 // stationary probability, with the principal axes.
 func planeFigure(c Case, pl Plane) Figure {
 	sub := fmt.Sprintf("%s, %d states · levels x0 and x1 of %d · axes span ±%d s.d.", c.Chain.Method, len(pl.X), c.Chain.Dim, axisSpan)
+	caption := "Each circle is a state; its area is the chain's long-run probability. Solid lines: principal axes of the chain's stationary covariance; dashed: those of the true process. Matching axes mean the chain reproduces the correlation and spread of the shocks."
+	if independent(c.Chain) {
+		caption += independentNote
+	}
 	return Figure{
 		Name:    "plane",
 		Title:   "States in the plane",
-		Caption: "Each circle is a state; its area is the chain's long-run probability. Solid lines: principal axes of the chain's stationary covariance; dashed: those of the true process. Matching axes mean the chain reproduces the correlation and spread of the shocks.",
+		Caption: caption,
 		Width:   16 * vg.Centimeter, Height: 15 * vg.Centimeter,
 		draw: func(dc draw.Canvas) {
 			body := drawHeader(dc, "States in the plane · "+c.Label, sub)

@@ -2,7 +2,9 @@ package figures
 
 // For returns every figure that applies to the case, in reading order:
 // the stationary mass (univariate) or the plane (vector chains), the
-// transition heat map, and the moment errors when diagnostics exist. It
+// transition heat map unless every row is the same distribution (an iid
+// law, which the first figure shows), and the moment errors when
+// diagnostics exist. It
 // fails only when the stationary distribution is not unique, which the
 // first figure needs.
 func For(c Case) ([]Figure, error) {
@@ -21,11 +23,35 @@ func For(c Case) ([]Figure, error) {
 		}
 		figs = append(figs, planeFigure(c, pl))
 	}
-	figs = append(figs, flowFigure(c, FlowOf(c)))
+	if !independent(c.Chain) {
+		figs = append(figs, flowFigure(c, FlowOf(c)))
+	}
 	if me, ok := MomentErrorsOf(c); ok {
 		figs = append(figs, momentsFigure(c, me))
 	}
-	return figs, nil
+	return append(figs, componentFigures(c)...), nil
+}
+
+// componentFigures returns the error figures of a vector chain's
+// coordinates after the first, one per coordinate with checks in
+// c.Components; the baseline is drawn for the first coordinate only, whose
+// checks are stored with the chain.
+func componentFigures(c Case) []Figure {
+	if c.Chain.Dim < 2 || c.SumDiag {
+		return nil
+	}
+	var figs []Figure
+	for k := 1; k < min(len(c.Components), c.Chain.Dim); k++ {
+		if c.Components[k] == nil {
+			continue
+		}
+		cc := c
+		cc.Diag, cc.BaselineDiag, cc.component = c.Components[k], nil, k
+		if me, ok := MomentErrorsOf(cc); ok {
+			figs = append(figs, momentsFigure(cc, me))
+		}
+	}
+	return figs
 }
 
 // ForLifeCycle returns the life-cycle figure.
