@@ -14,6 +14,7 @@ import (
 
 	"gridstage/accuracy"
 	"gridstage/internal/finitejson"
+	"gridstage/internal/plural"
 	"gridstage/solver"
 )
 
@@ -209,7 +210,7 @@ func printStudy(w io.Writer, title, kind string, rep accuracy.Report, asJSON boo
 		}{kind, rep})
 	}
 	cfg := rep.Config
-	fmt.Fprintf(w, "accuracy study: %s\n%d replications of %d observations, seed %d\n", title, cfg.Reps, cfg.Length, cfg.Seed)
+	fmt.Fprintf(w, "accuracy study: %s\n%s of %s, seed %d\n", title, plural.Count(cfg.Reps, "replication", "replications"), plural.Count(cfg.Length, "observation", "observations"), cfg.Seed)
 
 	fmt.Fprintln(w, "\n1. VAR implied by each chain's stationary distribution (population least squares; chain minus truth)")
 	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)
