@@ -157,10 +157,14 @@ func agesFigure(l LifeCycle, am AgeMass, ages []float64) Figure {
 	if l.YearsPerPeriod > 0 {
 		ageAxis = fmt.Sprintf("age (model period; one period = %g years)", l.YearsPerPeriod)
 	}
+	caption := "Each column of circles is one age's grid; circle area is the probability of that state at that age, starting from the initial distribution. The thick blue line follows the chain's mean, the thin blue lines its ±2 s.d."
+	if len(am.TrueSD) == len(ages) {
+		caption += " The dashed green lines are ±2 s.d. of the true process, around the chain's mean."
+	}
 	return Figure{
 		Name:    "ages",
 		Title:   "Grid and probability mass by age",
-		Caption: "Each column of circles is one age's grid; circle area is the probability of that state at that age, starting from the initial distribution. The line follows the mean, the shaded lines ±2 s.d. of the chain and, dashed, of the true process.",
+		Caption: caption,
 		Width:   18 * vg.Centimeter, Height: 11 * vg.Centimeter,
 		draw: func(dc draw.Canvas) {
 			body := drawHeader(dc, "Life cycle · "+l.Label, sub)

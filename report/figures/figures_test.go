@@ -535,3 +535,20 @@ func TestFlowGridPutsStateZeroOnTop(t *testing.T) {
 		t.Errorf("%d ticks for 441 states; minor ticks should stop for large chains", n)
 	}
 }
+
+// The life-cycle caption names the lines the figure draws, and the true
+// process's band only when it is drawn.
+func TestAgesCaptionNamesWhatIsDrawn(t *testing.T) {
+	l, sds := lifeCycleCase(t)
+	fig, err := ForLifeCycle(l)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !strings.Contains(fig.Caption, "thin blue lines its ±2 s.d.") || strings.Contains(fig.Caption, "dashed") || strings.Contains(fig.Caption, "shaded") {
+		t.Errorf("caption without the true band: %s", fig.Caption)
+	}
+	l.TrueSD = sds
+	if fig, _ = ForLifeCycle(l); !strings.Contains(fig.Caption, "dashed green lines are ±2 s.d. of the true process") {
+		t.Errorf("caption with the true band: %s", fig.Caption)
+	}
+}
