@@ -57,10 +57,10 @@ func (w *Dual) Solve(logq, dev []float64, L int, lam0, p []float64) (lam []float
 
 // solve is Solve with an iteration budget.
 //
-// Each iteration makes one pass over the grid for the gradient and the
-// Hessian, one for the step's shift of every log-weight, and one per trial
-// point of the line search; trial points move along the shifts, so they
-// cost one exponential per grid point and no further products.
+// Each iteration makes one pass over the grid for the Hessian, one for the
+// step's shift of every log-weight, and one per trial point of the line
+// search, which also sums the moment error; trial points move along the
+// shifts, so they cost one exponential per grid point.
 func (w *Dual) solve(logq, dev []float64, L int, lam0, p []float64, maxIter int) (lam []float64, ok bool) {
 	n := len(logq)
 	if len(dev) != n*L || len(p) != n {
@@ -75,27 +75,47 @@ func (w *Dual) solve(logq, dev []float64, L int, lam0, p []float64, maxIter int)
 	for j := range w.a {
 		a := logq[j]
 		for k, d := range dev[j*L : j*L+L] {
-			a += w.lam[k] * d
+			a += float64(w.lam[k] * d)
 		}
 		w.a[j] = a
 	}
-	f := normalize(w.a, w.p)
 	if L == 0 {
+		normalize(w.a, w.p)
 		copy(p, w.p)
 		return w.lam, true
 	}
+	best, sum := evaluate(w.a, w.p, dev, L, w.grad)
+	f := best + math.Log(sum)
+	w.accept(sum)
 	if !hullContainsZero(dev, n, L) {
 		return w.lam, false
 	}
+	// A short run (the quick stage of exactMatch) ends early when it starts
+	// far off (farStart) or stops gaining (quickStall): the exact tests
+	// that follow it either prove the target infeasible or hand the state
+	// back to Newton with the full budget from where it stopped.
+	quick := maxIter < dualMaxIter
+	stalled, prev := 0, math.Inf(1)
 	for it := 0; it < maxIter; it++ {
 		w.lastIter = it
-		w.moments(dev, n, L)
 		gmax := maxAbs(w.grad)
 		if gmax <= dualTol {
 			ok = true
 			break
 		}
-		if !cholesky(w.hess, w.chol, L) {
+		if quick && it == 0 && gmax > farStart {
+			break
+		}
+		if quick && gmax > 0.9*prev {
+			if stalled++; stalled == quickStall {
+				break
+			}
+		} else {
+			stalled = 0
+		}
+		prev = gmax
+		w.hessian(dev, n, L)
+		if !choleskySolve(w.hess, w.chol, L, w.grad, w.step) {
 			if w.atFloor(dev, n, L) {
 				ok = true
 				break
@@ -105,12 +125,12 @@ func (w *Dual) solve(logq, dev []float64, L int, lam0, p []float64, maxIter int)
 			// Levenberg-Marquardt damping keeps the step a descent
 			// direction; the log-step cap below bounds its length.
 			w.damp(L)
+			cholSolve(w.chol, L, w.grad, w.step)
 		}
-		cholSolve(w.chol, L, w.grad, w.step)
 		var slope float64
 		for k := range w.step {
 			w.step[k] = -w.step[k]
-			slope += w.grad[k] * w.step[k]
+			slope += float64(w.grad[k] * w.step[k])
 		}
 		// Near the optimum the decrease of the dual (about slope/2) falls
 		// below the rounding of f, so the Armijo test can no longer judge a
@@ -129,25 +149,28 @@ func (w *Dual) solve(logq, dev []float64, L int, lam0, p []float64, maxIter int)
 		for j := 0; j < n; j++ {
 			var s float64
 			for k, d := range dev[j*L : j*L+L] {
-				s += w.step[k] * d
+				s += float64(w.step[k] * d)
 			}
 			w.shift[j] = s
-			if rise := s - slope; w.a[j]-f+t*rise > maxLogStep {
+			if rise := s - slope; w.a[j]-f+float64(t*rise) > maxLogStep {
 				t = (maxLogStep - (w.a[j] - f)) / rise
 			}
 		}
 		accepted := false
 		for ls := 0; ls < 40; ls++ {
 			for j, a := range w.a {
-				w.aTry[j] = a + t*w.shift[j]
+				w.aTry[j] = a + float64(t*w.shift[j])
 			}
-			ft := normalize(w.aTry, w.pTry)
-			if ft <= f+1e-4*t*slope || quadratic {
+			best, sum := evaluate(w.aTry, w.pTry, dev, L, w.trial)
+			ft := best + math.Log(sum)
+			if ft <= f+float64(1e-4*t*slope) || quadratic {
 				f = ft
 				w.a, w.aTry = w.aTry, w.a
 				w.p, w.pTry = w.pTry, w.p
+				w.grad, w.trial = w.trial, w.grad
+				w.accept(sum)
 				for k := range w.lam {
-					w.lam[k] += t * w.step[k]
+					w.lam[k] += float64(t * w.step[k])
 				}
 				accepted = true
 				break
@@ -166,6 +189,18 @@ func (w *Dual) solve(logq, dev []float64, L int, lam0, p []float64, maxIter int)
 	return w.lam, ok && allFinite(p)
 }
 
+// quickStall is the number of iterations in a row, each leaving the moment
+// error above 0.9 times the one before, that end a short Newton run.
+const quickStall = 2
+
+// farStart is the moment error (in standard deviations of the moment
+// functions) of a start so far off that a short run leaves it to the exact
+// tests at once: typically a neighbour's multipliers carried to an edge
+// state whose target lies outside the grid's moment hull (at ρ = 0.9,
+// N = 9 and 21 with 4 moments, the edge states start at 2e4 and 1e5 and
+// Newton only circles).
+const farStart = 100
+
 // atFloor reports whether the moment error w.grad is as small as the
 // rounding of its sums allows: |g_k| ≤ dualAccept, or within 2¹⁰ ulps of
 // Σ_j p_j |dev_jk| (high powers of far grid points, as with 8 moments,
@@ -178,7 +213,7 @@ func (w *Dual) atFloor(dev []float64, n, L int) bool {
 		}
 		var size float64
 		for j := 0; j < n; j++ {
-			size += w.p[j] * math.Abs(dev[j*L+k])
+			size += float64(w.p[j] * math.Abs(dev[j*L+k]))
 		}
 		if !(g <= 0x1p-42*size) {
 			return false
@@ -196,10 +231,10 @@ func (w *Dual) damp(L int) {
 		scale = math.Max(scale, w.hess[r*L+r])
 	}
 	nu := math.Max(scale, 1e-300)
-	for mu := 1e-12; ; mu *= 100 {
+	for mu := 1e-12; ; mu = float64(mu * 100) {
 		for r := 0; r < L; r++ {
 			w.trial[r] = w.hess[r*L+r]
-			w.hess[r*L+r] += mu * (w.hess[r*L+r] + nu)
+			w.hess[r*L+r] += float64(mu * (w.hess[r*L+r] + nu))
 		}
 		if cholesky(w.hess, w.chol, L) || mu > 1e30 {
 			return
@@ -227,7 +262,7 @@ func normalize(a, p []float64) float64 {
 	}
 	inv := 1 / s
 	for j := range p {
-		p[j] *= inv
+		p[j] = float64(p[j] * inv)
 	}
 	return best + math.Log(s)
 }
@@ -249,18 +284,29 @@ func (w *Dual) moments(dev []float64, n, L int) {
 		}
 		row := dev[j*L : j*L+L]
 		for r := 0; r < L; r++ {
-			dr := pj * row[r]
+			dr := float64(pj * row[r])
 			w.grad[r] += dr
 			for c := 0; c <= r; c++ {
-				w.hess[r*L+c] += dr * row[c]
+				w.hess[r*L+c] += float64(dr * row[c])
 			}
 		}
 	}
+	w.finishHessian(dev, n, L)
+}
+
+// finishHessian turns the lower triangle of w.hess from the second moments
+// Σ_j p_j dev_j dev_jᵀ into the covariance about g = w.grad. The
+// uncentred form loses digits when g is large against the spread of the
+// moment functions (far from the optimum, or where p sits almost wholly on
+// one point, as at the hull's edge); when a diagonal entry keeps fewer than
+// about eight of its sixteen digits, the covariance is recomputed about g
+// in a second pass over every point (centredHessian).
+func (w *Dual) finishHessian(dev []float64, n, L int) {
 	cancelled := false
 	for r := 0; r < L; r++ {
 		raw := w.hess[r*L+r]
 		for c := 0; c <= r; c++ {
-			w.hess[r*L+c] -= w.grad[r] * w.grad[c]
+			w.hess[r*L+c] -= float64(w.grad[r] * w.grad[c])
 		}
 		cancelled = cancelled || !(w.hess[r*L+r] > 1e-8*raw)
 	}
@@ -280,9 +326,9 @@ func (w *Dual) centredHessian(dev []float64, n, L int) {
 		}
 		row := dev[j*L : j*L+L]
 		for r := 0; r < L; r++ {
-			dr := pj * (row[r] - w.grad[r])
+			dr := float64(pj * (row[r] - w.grad[r]))
 			for c := 0; c <= r; c++ {
-				w.hess[r*L+c] += dr * (row[c] - w.grad[c])
+				w.hess[r*L+c] += float64(dr * (row[c] - w.grad[c]))
 			}
 		}
 	}
@@ -313,7 +359,7 @@ func cholesky(a, l []float64, L int) bool {
 		for c := 0; c <= r; c++ {
 			s := a[r*L+c]
 			for k := 0; k < c; k++ {
-				s -= l[r*L+k] * l[c*L+k]
+				s -= float64(l[r*L+k] * l[c*L+k])
 			}
 			if r == c {
 				if !(s > 1e-300) || s <= 1e-14*a[r*L+r] {
@@ -333,14 +379,14 @@ func cholSolve(l []float64, L int, b, x []float64) {
 	for r := 0; r < L; r++ {
 		s := b[r]
 		for k := 0; k < r; k++ {
-			s -= l[r*L+k] * x[k]
+			s -= float64(l[r*L+k] * x[k])
 		}
 		x[r] = s / l[r*L+r]
 	}
 	for r := L - 1; r >= 0; r-- {
 		s := x[r]
 		for k := r + 1; k < L; k++ {
-			s -= l[k*L+r] * x[k]
+			s -= float64(l[k*L+r] * x[k])
 		}
 		x[r] = s / l[r*L+r]
 	}
