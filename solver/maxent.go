@@ -1,6 +1,10 @@
 package solver
 
-import "math"
+import (
+	"math"
+
+	"gridstage/internal/portablemath"
+)
 
 // Tolerances of the dual Newton solver. Moment errors are measured in
 // standardized units (deviations divided by the conditional s.d.), so one
@@ -75,7 +79,7 @@ func (w *Dual) solve(logq, dev []float64, L int, lam0, p []float64, maxIter int)
 	for j := range w.a {
 		a := logq[j]
 		for k, d := range dev[j*L : j*L+L] {
-			a += w.lam[k] * d
+			a += float64(w.lam[k] * d)
 		}
 		w.a[j] = a
 	}
@@ -110,7 +114,7 @@ func (w *Dual) solve(logq, dev []float64, L int, lam0, p []float64, maxIter int)
 		var slope float64
 		for k := range w.step {
 			w.step[k] = -w.step[k]
-			slope += w.grad[k] * w.step[k]
+			slope += float64(w.grad[k] * w.step[k])
 		}
 		// Near the optimum the decrease of the dual (about slope/2) falls
 		// below the rounding of f, so the Armijo test can no longer judge a
@@ -129,25 +133,25 @@ func (w *Dual) solve(logq, dev []float64, L int, lam0, p []float64, maxIter int)
 		for j := 0; j < n; j++ {
 			var s float64
 			for k, d := range dev[j*L : j*L+L] {
-				s += w.step[k] * d
+				s += float64(w.step[k] * d)
 			}
 			w.shift[j] = s
-			if rise := s - slope; w.a[j]-f+t*rise > maxLogStep {
+			if rise := s - slope; w.a[j]-f+float64(t*rise) > maxLogStep {
 				t = (maxLogStep - (w.a[j] - f)) / rise
 			}
 		}
 		accepted := false
 		for ls := 0; ls < 40; ls++ {
 			for j, a := range w.a {
-				w.aTry[j] = a + t*w.shift[j]
+				w.aTry[j] = a + float64(t*w.shift[j])
 			}
 			ft := normalize(w.aTry, w.pTry)
-			if ft <= f+1e-4*t*slope || quadratic {
+			if ft <= f+float64(1e-4*t*slope) || quadratic {
 				f = ft
 				w.a, w.aTry = w.aTry, w.a
 				w.p, w.pTry = w.pTry, w.p
 				for k := range w.lam {
-					w.lam[k] += t * w.step[k]
+					w.lam[k] += float64(t * w.step[k])
 				}
 				accepted = true
 				break
@@ -178,7 +182,7 @@ func (w *Dual) atFloor(dev []float64, n, L int) bool {
 		}
 		var size float64
 		for j := 0; j < n; j++ {
-			size += w.p[j] * math.Abs(dev[j*L+k])
+			size += float64(w.p[j] * math.Abs(dev[j*L+k]))
 		}
 		if !(g <= 0x1p-42*size) {
 			return false
@@ -196,10 +200,10 @@ func (w *Dual) damp(L int) {
 		scale = math.Max(scale, w.hess[r*L+r])
 	}
 	nu := math.Max(scale, 1e-300)
-	for mu := 1e-12; ; mu *= 100 {
+	for mu := 1e-12; ; mu = float64(mu * 100) {
 		for r := 0; r < L; r++ {
 			w.trial[r] = w.hess[r*L+r]
-			w.hess[r*L+r] += mu * (w.hess[r*L+r] + nu)
+			w.hess[r*L+r] += float64(mu * (w.hess[r*L+r] + nu))
 		}
 		if cholesky(w.hess, w.chol, L) || mu > 1e30 {
 			return
@@ -221,15 +225,15 @@ func normalize(a, p []float64) float64 {
 	}
 	var s float64
 	for j, x := range a {
-		e := math.Exp(x - best)
+		e := portablemath.Exp(x - best)
 		p[j] = e
 		s += e
 	}
 	inv := 1 / s
 	for j := range p {
-		p[j] *= inv
+		p[j] = float64(p[j] * inv)
 	}
-	return best + math.Log(s)
+	return best + portablemath.Log(s)
 }
 
 // moments sets w.grad = Σ_j p_j dev_j (the current moment error) and the
@@ -249,10 +253,10 @@ func (w *Dual) moments(dev []float64, n, L int) {
 		}
 		row := dev[j*L : j*L+L]
 		for r := 0; r < L; r++ {
-			dr := pj * row[r]
+			dr := float64(pj * row[r])
 			w.grad[r] += dr
 			for c := 0; c <= r; c++ {
-				w.hess[r*L+c] += dr * row[c]
+				w.hess[r*L+c] += float64(dr * row[c])
 			}
 		}
 	}
@@ -260,7 +264,7 @@ func (w *Dual) moments(dev []float64, n, L int) {
 	for r := 0; r < L; r++ {
 		raw := w.hess[r*L+r]
 		for c := 0; c <= r; c++ {
-			w.hess[r*L+c] -= w.grad[r] * w.grad[c]
+			w.hess[r*L+c] -= float64(w.grad[r] * w.grad[c])
 		}
 		cancelled = cancelled || !(w.hess[r*L+r] > 1e-8*raw)
 	}
@@ -280,9 +284,9 @@ func (w *Dual) centredHessian(dev []float64, n, L int) {
 		}
 		row := dev[j*L : j*L+L]
 		for r := 0; r < L; r++ {
-			dr := pj * (row[r] - w.grad[r])
+			dr := float64(pj * (row[r] - w.grad[r]))
 			for c := 0; c <= r; c++ {
-				w.hess[r*L+c] += dr * (row[c] - w.grad[c])
+				w.hess[r*L+c] += float64(dr * (row[c] - w.grad[c]))
 			}
 		}
 	}
@@ -313,7 +317,7 @@ func cholesky(a, l []float64, L int) bool {
 		for c := 0; c <= r; c++ {
 			s := a[r*L+c]
 			for k := 0; k < c; k++ {
-				s -= l[r*L+k] * l[c*L+k]
+				s -= float64(l[r*L+k] * l[c*L+k])
 			}
 			if r == c {
 				if !(s > 1e-300) || s <= 1e-14*a[r*L+r] {
@@ -333,14 +337,14 @@ func cholSolve(l []float64, L int, b, x []float64) {
 	for r := 0; r < L; r++ {
 		s := b[r]
 		for k := 0; k < r; k++ {
-			s -= l[r*L+k] * x[k]
+			s -= float64(l[r*L+k] * x[k])
 		}
 		x[r] = s / l[r*L+r]
 	}
 	for r := L - 1; r >= 0; r-- {
 		s := x[r]
 		for k := r + 1; k < L; k++ {
-			s -= l[k*L+r] * x[k]
+			s -= float64(l[k*L+r] * x[k])
 		}
 		x[r] = s / l[r*L+r]
 	}
