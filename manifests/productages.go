@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"math"
 
+	"gridstage/internal/portablemath"
 	"gridstage/solver"
 )
 
@@ -49,7 +50,7 @@ func (m productAges) DiscretizeAges(solver.Settings) (*solver.AgeChain, error) {
 type cumulants [4]float64
 
 func cumulantsOf(m solver.Moments) cumulants {
-	return cumulants{m.Mean, m.Var, m.Skew * math.Pow(m.Var, 1.5), (m.Kurt - 3) * m.Var * m.Var}
+	return cumulants{m.Mean, m.Var, float64(m.Skew * portablemath.Pow(m.Var, 1.5)), float64((m.Kurt - 3) * m.Var * m.Var)}
 }
 
 func (c cumulants) add(d cumulants) cumulants {
@@ -60,7 +61,7 @@ func (c cumulants) add(d cumulants) cumulants {
 }
 
 func (c cumulants) moments() solver.Moments {
-	return solver.Moments{Mean: c[0], Var: c[1], Skew: c[2] / math.Pow(c[1], 1.5), Kurt: 3 + c[3]/(c[1]*c[1])}
+	return solver.Moments{Mean: c[0], Var: c[1], Skew: c[2] / portablemath.Pow(c[1], 1.5), Kurt: 3 + c[3]/(c[1]*c[1])}
 }
 
 // conditional returns the true cumulants of the sum of the coordinates
@@ -90,10 +91,10 @@ func (m productAges) marginal(ages int) (law []cumulants, cov []float64) {
 		if p.lifeCycle() {
 			ms := p.ages.Marginal()
 			for t, s := range ms {
-				law[t] = law[t].add(cumulantsOf(solver.Moments{Mean: s.Mean, Var: s.SD * s.SD, Skew: s.Skew, Kurt: s.Kurt}))
+				law[t] = law[t].add(cumulantsOf(solver.Moments{Mean: s.Mean, Var: float64(s.SD * s.SD), Skew: s.Skew, Kurt: s.Kurt}))
 				if t > 0 {
 					// Marginal's Autocorr is Corr(z_{t−1}, z_t).
-					cov[t-1] += s.Autocorr * s.SD * ms[t-1].SD
+					cov[t-1] += float64(s.Autocorr * s.SD * ms[t-1].SD)
 				}
 			}
 			continue
@@ -101,12 +102,12 @@ func (m productAges) marginal(ages int) (law []cumulants, cov []float64) {
 		// A time-invariant component enters in its stationary law and
 		// stays in it.
 		u := p.model.Unconditional()
-		c := cumulantsOf(solver.Moments{Mean: u.Mean, Var: u.SD * u.SD, Skew: u.Skew, Kurt: u.Kurt})
+		c := cumulantsOf(solver.Moments{Mean: u.Mean, Var: float64(u.SD * u.SD), Skew: u.Skew, Kurt: u.Kurt})
 		for t := range law {
 			law[t] = law[t].add(c)
 		}
 		for t := range cov {
-			cov[t] += u.Autocorr * u.SD * u.SD
+			cov[t] += float64(u.Autocorr * u.SD * u.SD)
 		}
 	}
 	return law, cov
@@ -140,7 +141,7 @@ func (m productAges) DiagnoseAges(a *solver.AgeChain) []solver.Diagnostics {
 		for i := range d.States {
 			cm := solver.WeightedMoments(c.Row(i), sums[t+1])
 			tm := m.conditional(t, c.State(i)).moments()
-			chainCov += marg[t][i] * (sums[t][i] - from.Mean) * cm.Mean
+			chainCov += float64(marg[t][i] * (sums[t][i] - from.Mean) * cm.Mean)
 			d.States[i] = stateCheck(c.State(i), cm, tm, c.Matched[i])
 			d.WorstRelErr.Mean = math.Max(d.WorstRelErr.Mean, math.Abs(d.States[i].RelErr.Mean))
 			d.WorstRelErr.Var = math.Max(d.WorstRelErr.Var, math.Abs(d.States[i].RelErr.Var))
@@ -149,10 +150,10 @@ func (m productAges) DiagnoseAges(a *solver.AgeChain) []solver.Diagnostics {
 		}
 		next := solver.WeightedMoments(marg[t+1], sums[t+1])
 		d.Chain = solver.Summary{Mean: next.Mean, SD: math.Sqrt(next.Var), Skew: next.Skew, Kurt: next.Kurt,
-			Autocorr: chainCov / math.Sqrt(from.Var*next.Var)}
+			Autocorr: chainCov / math.Sqrt(float64(from.Var*next.Var))}
 		tt := law[t+1].moments()
 		d.True = solver.Summary{Mean: tt.Mean, SD: math.Sqrt(tt.Var), Skew: tt.Skew, Kurt: tt.Kurt,
-			Autocorr: cov[t] / math.Sqrt(law[t][1]*law[t+1][1])}
+			Autocorr: cov[t] / math.Sqrt(float64(law[t][1]*law[t+1][1]))}
 		out[t] = d
 	}
 	return out

@@ -3,6 +3,8 @@ package solver
 import (
 	"math"
 	"sync"
+
+	"gridstage/internal/portablemath"
 )
 
 // The equal-probability-interval method of Adda and Cooper (2003) for the
@@ -59,7 +61,7 @@ func addaCooperBreaks(n int) []float64 {
 }
 
 // stdNormalPDF is φ(t).
-func stdNormalPDF(t float64) float64 { return math.Exp(-t*t/2) / math.Sqrt(2*math.Pi) }
+func stdNormalPDF(t float64) float64 { return portablemath.Exp(-t*t/2) / math.Sqrt(2*math.Pi) }
 
 // pdfDrop returns φ(a) − φ(b) for a < b without the cancellation of the
 // direct difference on narrow intervals: φ(a) − φ(b) = −φ(a) expm1(−(b−a)(b+a)/2).
@@ -70,7 +72,7 @@ func pdfDrop(a, b float64) float64 {
 	case math.IsInf(b, 1):
 		return stdNormalPDF(a)
 	}
-	return -stdNormalPDF(a) * math.Expm1(-(b-a)*(b+a)/2)
+	return float64(-stdNormalPDF(a) * portablemath.Expm1(-(b-a)*(b+a)/2))
 }
 
 // addaCooperGrid returns the N conditional means z_i of N(mean, sd²) on
@@ -79,7 +81,7 @@ func addaCooperGrid(n int, mean, sd float64) []float64 {
 	a := addaCooperBreaks(n)
 	z := make([]float64, n)
 	for i := 0; 2*i+1 < n; i++ {
-		d := float64(n) * sd * pdfDrop(a[i], a[i+1])
+		d := float64(float64(n) * sd * pdfDrop(a[i], a[i+1]))
 		z[i], z[n-1-i] = mean+d, mean-d
 	}
 	if n%2 == 1 {
@@ -126,16 +128,16 @@ func addaCooperMatrix(n int, rho float64, trans []float64) {
 // copies by the two exact symmetries above.
 func addaCooperRaw(n int, rho float64, trans []float64) (bound, rowDefect float64) {
 	a := addaCooperBreaks(n)
-	s := math.Sqrt((1 - rho) * (1 + rho))
+	s := math.Sqrt(float64((1 - rho) * (1 + rho)))
 	y := 1.0
 	if math.Abs(rho) > s {
 		y = s / math.Abs(rho)
 	}
 	v := math.Abs(rho) * y / s
 	phi0 := 1 / math.Sqrt(2*math.Pi)
-	mScale := math.Exp(y*y/2) * 2 * (1 + phi0*v*math.Exp(v*v/2)) // M / φ(x₀)
+	mScale := float64(portablemath.Exp(y*y/2) * 2 * (1 + float64(phi0*v*portablemath.Exp(v*v/2)))) // M / φ(x₀)
 	nf := float64(n)
-	tail := nf * 0.5 * math.Erfc(addaCooperTail/math.Sqrt2)
+	tail := float64(nf * 0.5 * portablemath.Erfc(addaCooperTail/math.Sqrt2))
 
 	var nodes, weights []float64
 	row := make([]float64, n)
@@ -148,17 +150,17 @@ func addaCooperRaw(n int, rho float64, trans []float64) (bound, rowDefect float6
 		reach := h * (r + 1/r) / 2 // the ellipse's real semi-axis
 		var sum float64
 		for p := 0; p < int(panels); p++ {
-			mid := lo + h*float64(2*p+1)
-			mBound := stdNormalPDF(math.Max(0, math.Abs(mid)-reach)) * mScale
+			mid := lo + float64(h*float64(2*p+1))
+			mBound := float64(stdNormalPDF(math.Max(0, math.Abs(mid)-reach)) * mScale)
 			// Smallest n_p with N·h·(64/15)·M·r^{−2n_p}/(r²−1) ≤ δ·2h/N.
-			np := int(math.Ceil(math.Log(nf*nf*64*mBound/(15*2*addaCooperTol*(r*r-1))) / (2 * math.Log(r))))
+			np := int(math.Ceil(portablemath.Log(nf*nf*64*mBound/(15*2*addaCooperTol*(float64(r*r)-1))) / (2 * portablemath.Log(r))))
 			np = max(np, 1)
-			sum += nf * h * 64 * mBound / 15 * math.Pow(r, -2*float64(np)) / (r*r - 1)
+			sum += nf * h * 64 * mBound / 15 * portablemath.Pow(r, float64(-2*float64(np))) / (float64(r*r) - 1)
 			rule := gaussLegendreUnit(np)
 			for k, x := range rule.Nodes {
-				t := mid + h*x
+				t := mid + float64(h*x)
 				nodes = append(nodes, t)
-				weights = append(weights, nf*h*rule.Weights[k]*stdNormalPDF(t))
+				weights = append(weights, float64(nf*h*rule.Weights[k]*stdNormalPDF(t)))
 			}
 		}
 		bound = math.Max(bound, sum+tail)
@@ -175,9 +177,9 @@ func addaCooperRaw(n int, rho float64, trans []float64) (bound, rowDefect float6
 				// Differences of survival values keep precision when both
 				// ends lie in the upper tail, where CDF values round to one.
 				if prevX > 0 {
-					row[j] += w * (prevSF - sf)
+					row[j] += float64(w * (prevSF - sf))
 				} else {
-					row[j] += w * (cdf - prevCDF)
+					row[j] += float64(w * (cdf - prevCDF))
 				}
 				prevCDF, prevSF, prevX = cdf, sf, x
 			}
@@ -222,11 +224,11 @@ func normalTails(c, rho, s, t float64) (cdf, sf, x float64) {
 	case math.IsInf(c, 1):
 		return 1, 0, c
 	}
-	x = (c - rho*t) / s
+	x = (c - float64(rho*t)) / s
 	if x > 0 {
-		sf = 0.5 * math.Erfc(x/math.Sqrt2)
+		sf = float64(0.5 * portablemath.Erfc(x/math.Sqrt2))
 		return 1 - sf, sf, x
 	}
-	cdf = 0.5 * math.Erfc(-x/math.Sqrt2)
+	cdf = float64(0.5 * portablemath.Erfc(-x/math.Sqrt2))
 	return cdf, 1 - cdf, x
 }

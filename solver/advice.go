@@ -189,16 +189,16 @@ func AdviseGrid(s Settings, limit int, try func(Settings) (bool, int, error), pe
 	if w0 == 0 {
 		w0 = DefaultWidth(requested)
 	}
-	lo, hi := 0.5, math.Max(2*w0, 2*DefaultWidth(requested))
+	lo, hi := 0.5, math.Max(float64(2*w0), float64(2*DefaultWidth(requested)))
 	adv.WidthRange = [2]float64{lo, hi}
 	for k := 1; ; k++ {
 		tried := false
-		for _, w := range []float64{w0 - 0.1*float64(k), w0 + 0.1*float64(k)} {
+		for _, w := range []float64{w0 - float64(0.1*float64(k)), w0 + float64(0.1*float64(k))} {
 			if w < lo-1e-9 || w > hi+1e-9 {
 				continue
 			}
 			tried = true
-			s.Width = math.Round(w*10) / 10
+			s.Width = math.Round(float64(w*10)) / 10
 			ok, _, err := try(s)
 			if err != nil {
 				return adv, err

@@ -52,11 +52,11 @@ func DiagnoseAges(a *AgeChain, p LifeCycle) AgeDiagnostics {
 			chk.WorstRelErr.Skew = math.Max(chk.WorstRelErr.Skew, math.Abs(cm.Skew-tm.Skew))
 			chk.WorstRelErr.Kurt = math.Max(chk.WorstRelErr.Kurt, math.Abs(cm.Kurt-tm.Kurt)/tm.Kurt)
 			// Cov(z_t, z_{t+1}) = E[(z_t − μ_t) E[z_{t+1} | z_t]].
-			cov += marg[t][i] * (z - from.Mean) * cm.Mean
+			cov += float64(marg[t][i] * (z - from.Mean) * cm.Mean)
 		}
 		m := WeightedMoments(marg[t+1], next)
 		chk.Chain = Summary{Mean: m.Mean, SD: math.Sqrt(m.Var), Skew: m.Skew, Kurt: m.Kurt,
-			Autocorr: cov / math.Sqrt(from.Var*m.Var)}
+			Autocorr: cov / math.Sqrt(float64(from.Var*m.Var))}
 		out.Ages[t] = chk
 	}
 	return out

@@ -3,6 +3,8 @@ package solver
 import (
 	"math"
 	"strconv"
+
+	"gridstage/internal/portablemath"
 )
 
 // AR1 is the first-order autoregression
@@ -49,7 +51,7 @@ type Settings struct {
 }
 
 // StationarySD returns σ/√(1−ρ²), the unconditional standard deviation.
-func (p AR1) StationarySD() float64 { return p.Sigma / math.Sqrt(1-p.Rho*p.Rho) }
+func (p AR1) StationarySD() float64 { return p.Sigma / math.Sqrt(1-float64(p.Rho*p.Rho)) }
 
 // Validate reports the first parameter outside its range.
 func (p AR1) Validate() error {
@@ -143,7 +145,7 @@ func (p AR1) Discretize(s Settings) (*Chain, error) {
 	law := conditional{Mean: make([]float64, n), SD: make([]float64, n), Shock: p.Shock}
 	setLaw := func(nodes []float64) {
 		for i, x := range nodes {
-			law.Mean[i] = (1-p.Rho)*p.Mean + p.Rho*x
+			law.Mean[i] = float64((1-p.Rho)*p.Mean) + float64(p.Rho*x)
 			law.SD[i] = p.Sigma
 		}
 	}
@@ -160,7 +162,7 @@ func (p AR1) Discretize(s Settings) (*Chain, error) {
 		if width == 0 {
 			width = DefaultTauchenWidth
 		}
-		r := Trapezoid(n, p.Mean-width*sdY, p.Mean+width*sdY)
+		r := Trapezoid(n, p.Mean-float64(width*sdY), p.Mean+float64(width*sdY))
 		setLaw(r.Nodes)
 		tauchenRows(r.Nodes, r.Nodes[1]-r.Nodes[0], law, c.Transition)
 		c.Grid = r.Nodes
@@ -168,19 +170,19 @@ func (p AR1) Discretize(s Settings) (*Chain, error) {
 		base := p.Sigma
 		if s.Floden {
 			w := FlodenWeight(p.Rho)
-			base = w*p.Sigma + (1-w)*sdY
+			base = float64(w*p.Sigma) + float64((1-w)*sdY)
 		}
 		r := GaussHermite(n)
 		logOmega := make([]float64, n)
 		for j, xi := range r.Nodes {
-			r.Nodes[j] = p.Mean + math.Sqrt2*base*xi
-			logOmega[j] = math.Log(r.Weights[j])
+			r.Nodes[j] = p.Mean + float64(math.Sqrt2*base*xi)
+			logOmega[j] = portablemath.Log(r.Weights[j])
 		}
 		setLaw(r.Nodes)
 		tauchenHusseyRows(r.Nodes, logOmega, p.Mean, base, law, c.Transition)
 		c.Grid = r.Nodes
 	case Rouwenhorst:
-		psi := RouwenhorstWidth(n) * sdY
+		psi := float64(RouwenhorstWidth(n) * sdY)
 		r := Trapezoid(n, p.Mean-psi, p.Mean+psi)
 		pq := (1 + p.Rho) / 2
 		rouwenhorstMatrix(n, pq, pq, c.Transition)
@@ -207,7 +209,7 @@ func (p AR1) Conditional(x []float64) Moments {
 		skew, _ = p.Shock.StdMoment(3)
 		kurt, _ = p.Shock.StdMoment(4)
 	}
-	return Moments{Mean: (1-p.Rho)*p.Mean + p.Rho*x[0], Var: p.Sigma * p.Sigma, Skew: skew, Kurt: kurt}
+	return Moments{Mean: float64((1-p.Rho)*p.Mean) + float64(p.Rho*x[0]), Var: float64(p.Sigma * p.Sigma), Skew: skew, Kurt: kurt}
 }
 
 // Unconditional returns the true stationary moments and the first-order
@@ -215,14 +217,14 @@ func (p AR1) Conditional(x []float64) Moments {
 // stationary law are κ_k(x) = κ_k(σz)/(1 − ρ^k).
 func (p AR1) Unconditional() Summary {
 	c := p.Conditional([]float64{p.Mean})
-	s2 := p.Sigma * p.Sigma
-	varY := s2 / (1 - p.Rho*p.Rho)
-	k3 := c.Skew * s2 * p.Sigma / (1 - p.Rho*p.Rho*p.Rho)
-	k4 := (c.Kurt - 3) * s2 * s2 / (1 - math.Pow(p.Rho, 4))
+	s2 := float64(p.Sigma * p.Sigma)
+	varY := s2 / (1 - float64(p.Rho*p.Rho))
+	k3 := c.Skew * s2 * p.Sigma / (1 - float64(p.Rho*p.Rho*p.Rho))
+	k4 := (c.Kurt - 3) * s2 * s2 / (1 - portablemath.Pow(p.Rho, 4))
 	return Summary{
 		Mean:     p.Mean,
 		SD:       math.Sqrt(varY),
-		Skew:     k3 / math.Pow(varY, 1.5),
+		Skew:     k3 / portablemath.Pow(varY, 1.5),
 		Kurt:     3 + k4/(varY*varY),
 		Autocorr: p.Rho,
 	}

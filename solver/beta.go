@@ -3,7 +3,7 @@ package solver
 import (
 	"math"
 
-	"gonum.org/v1/gonum/stat/distuv"
+	"gridstage/internal/portablemath"
 )
 
 // Beta is the beta distribution with shapes Alpha, Beta rescaled to [Lo, Hi].
@@ -16,7 +16,6 @@ func (d Beta) bounds() (lo, hi float64) {
 	}
 	return d.Lo, d.Hi
 }
-func (d Beta) dist() distuv.Beta { return distuv.Beta{Alpha: d.Alpha, Beta: d.Beta} }
 
 func (d Beta) LogProb(x float64) float64 {
 	lo, hi := d.bounds()
@@ -24,7 +23,17 @@ func (d Beta) LogProb(x float64) float64 {
 	if u < 0 || u > 1 {
 		return math.Inf(-1)
 	}
-	return d.dist().LogProb(u) - math.Log(hi-lo)
+	lab, _ := portablemath.Lgamma(d.Alpha + d.Beta)
+	la, _ := portablemath.Lgamma(d.Alpha)
+	lb, _ := portablemath.Lgamma(d.Beta)
+	var lu, l1mu float64
+	if d.Alpha != 1 {
+		lu = float64((d.Alpha - 1) * portablemath.Log(u))
+	}
+	if d.Beta != 1 {
+		l1mu = float64((d.Beta - 1) * portablemath.Log(1-u))
+	}
+	return lab - la - lb + lu + l1mu - portablemath.Log(hi-lo)
 }
 func (d Beta) CDF(x float64) float64 {
 	lo, hi := d.bounds()
@@ -35,29 +44,32 @@ func (d Beta) CDF(x float64) float64 {
 	case u >= 1:
 		return 1
 	}
-	return d.dist().CDF(u)
+	return portablemath.BetaRegularized(d.Alpha, d.Beta, u)
 }
 func (d Beta) Quantile(p float64) float64 {
 	lo, hi := d.bounds()
-	return lo + (hi-lo)*d.dist().Quantile(p)
+	if p < 0 || p > 1 {
+		panic("solver: beta quantile of a probability outside [0, 1]")
+	}
+	return lo + float64((hi-lo)*portablemath.BetaRegularizedInverse(d.Alpha, d.Beta, p))
 }
 
 // raw01 returns E U^k on [0, 1]: Π_{r<k} (α+r)/(α+β+r).
 func (d Beta) raw01(k int) float64 {
 	r := 1.0
 	for i := 0; i < k; i++ {
-		r *= (d.Alpha + float64(i)) / (d.Alpha + d.Beta + float64(i))
+		r = float64(r * ((d.Alpha + float64(i)) / (d.Alpha + d.Beta + float64(i))))
 	}
 	return r
 }
 func (d Beta) Mean() float64 {
 	lo, hi := d.bounds()
-	return lo + (hi-lo)*d.raw01(1)
+	return lo + float64((hi-lo)*d.raw01(1))
 }
 func (d Beta) StdDev() float64 {
 	lo, hi := d.bounds()
 	a, b := d.Alpha, d.Beta
-	return (hi - lo) * math.Sqrt(a*b/((a+b)*(a+b)*(a+b+1)))
+	return float64((hi - lo) * math.Sqrt(a*b/((a+b)*(a+b)*(a+b+1))))
 }
 
 // StdMoment is invariant under the affine map to [Lo, Hi].

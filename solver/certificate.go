@@ -75,10 +75,10 @@ func infeasibleAt(dev []float64, n, L int, y []float64) bool {
 	for j := 0; j < n; j++ {
 		var v, size float64
 		for k, d := range dev[j*L : (j+1)*L] {
-			v += y[k] * d
-			size += math.Abs(y[k] * d)
+			v += float64(y[k] * d)
+			size += math.Abs(float64(y[k] * d))
 		}
-		slack := 4 * float64(L+1) * 0x1p-52 * size
+		slack := float64(4 * float64(L+1) * 0x1p-52 * size)
 		if v-slack > 0 {
 			pos += v - slack
 		}

@@ -1,6 +1,10 @@
 package solver
 
-import "math"
+import (
+	"math"
+
+	"gridstage/internal/portablemath"
+)
 
 // Moments are the first four moments of a conditional distribution.
 type Moments struct {
@@ -121,9 +125,9 @@ func Diagnose(c *Chain, truth Truth) Diagnostics {
 	for i := 0; i < n; i++ {
 		var next float64
 		for j, p := range c.Row(i) {
-			next += p * x(j)
+			next += float64(p * x(j))
 		}
-		cov += pi[i] * (x(i) - um.Mean) * (next - um.Mean)
+		cov += float64(pi[i] * (x(i) - um.Mean) * (next - um.Mean))
 	}
 	d.Chain.Autocorr = cov / um.Var
 	return d
@@ -149,17 +153,17 @@ func rowDiagnostics(c *Chain, rows *shaper, i int) (*float64, *RowShape) {
 func weightedMoments(w []float64, x func(int) float64) Moments {
 	var mean float64
 	for j, p := range w {
-		mean += p * x(j)
+		mean += float64(p * x(j))
 	}
 	var m2, m3, m4 float64
 	for j, p := range w {
 		d := x(j) - mean
-		d2 := d * d
-		m2 += p * d2
-		m3 += p * d2 * d
-		m4 += p * d2 * d2
+		d2 := float64(d * d)
+		m2 += float64(p * d2)
+		m3 += float64(p * d2 * d)
+		m4 += float64(p * d2 * d2)
 	}
-	return Moments{Mean: mean, Var: m2, Skew: m3 / math.Pow(m2, 1.5), Kurt: m4 / (m2 * m2)}
+	return Moments{Mean: mean, Var: m2, Skew: m3 / portablemath.Pow(m2, 1.5), Kurt: m4 / (m2 * m2)}
 }
 
 // WeightedMoments returns the mean, variance, skewness and kurtosis of the

@@ -1,6 +1,6 @@
 package solver
 
-import "math"
+import "gridstage/internal/portablemath"
 
 // Distribution is a univariate continuous distribution with the quantities
 // the discretization needs. Implementations in this package: Normal,
@@ -32,7 +32,7 @@ func stdMomentFromCentral(c func(k int) float64, k int) float64 {
 		return 1
 	}
 	v := c(2)
-	return c(k) / math.Pow(v, float64(k)/2)
+	return c(k) / portablemath.Pow(v, float64(k)/2)
 }
 
 // centralFromRaw returns E(X−μ)^k from raw moments raw(j) = E X^j.
@@ -40,7 +40,7 @@ func centralFromRaw(raw func(j int) float64, k int) float64 {
 	mu := raw(1)
 	var s float64
 	for j := 0; j <= k; j++ {
-		s += binomial(k, j) * raw(j) * math.Pow(-mu, float64(k-j))
+		s += float64(binomial(k, j) * raw(j) * portablemath.Pow(-mu, float64(k-j)))
 	}
 	return s
 }
@@ -48,7 +48,7 @@ func centralFromRaw(raw func(j int) float64, k int) float64 {
 func binomial(n, k int) float64 {
 	r := 1.0
 	for i := 1; i <= k; i++ {
-		r *= float64(n-k+i) / float64(i)
+		r = float64(r * (float64(n-k+i) / float64(i)))
 	}
 	return r
 }
@@ -60,7 +60,7 @@ func normalStdMoment(k int) float64 {
 	}
 	r := 1.0
 	for i := k - 1; i > 1; i -= 2 {
-		r *= float64(i)
+		r = float64(r * float64(i))
 	}
 	return r
 }
@@ -71,9 +71,11 @@ type Standardized struct{ Base Distribution }
 
 func (s Standardized) LogProb(z float64) float64 {
 	sd := s.Base.StdDev()
-	return s.Base.LogProb(s.Base.Mean()+sd*z) + math.Log(sd)
+	return s.Base.LogProb(s.Base.Mean()+float64(sd*z)) + portablemath.Log(sd)
 }
-func (s Standardized) CDF(z float64) float64 { return s.Base.CDF(s.Base.Mean() + s.Base.StdDev()*z) }
+func (s Standardized) CDF(z float64) float64 {
+	return s.Base.CDF(s.Base.Mean() + float64(s.Base.StdDev()*z))
+}
 func (s Standardized) Quantile(p float64) float64 {
 	return (s.Base.Quantile(p) - s.Base.Mean()) / s.Base.StdDev()
 }

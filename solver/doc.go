@@ -122,4 +122,30 @@
 // baselines.
 //
 // The package is pure: values in, values out, no files, flags or logging.
+//
+// # Same numbers on every machine
+//
+// Chains are bit-identical on amd64 and arm64 (docs/HASHES.md; nothing
+// below is specific to either, so other targets should agree too), which
+// two rules keep; internal/fusecheck fails the suite when code in this
+// package or in manifests breaks either:
+//
+//   - Every floating-point product that is not an operand of another * or
+//     /, or of a comparison, is written float64(a*b): so a*b + c becomes
+//     float64(a*b) + c, s += a*b becomes s += float64(a*b), and x *= y
+//     becomes x = float64(x * y). Go may fuse a*b + c into one fused
+//     multiply-add, even across statements and inlined calls, and does on
+//     arm64 but not on amd64; an explicit conversion rounds the product and
+//     forbids it. go test ./internal/fusecheck -fix wraps what it finds.
+//   - Elementary and special functions come from
+//     gridstage/internal/portablemath (Exp, Log, Pow, Erfc, Lgamma,
+//     NormalQuantile, BetaRegularized, ...); from package math only the
+//     exact ones (Sqrt, Abs, Floor, Max, Frexp, ...), since the others are
+//     assembly on amd64 or arm64 or compiled with fusion.
+//
+// Library code is held to the same rules: gonum's distributions and
+// linear algebra are not used on the hash path (linalg.go has the
+// eigenvalue and LU routines the solver needs); internal/fusecheck refuses
+// imports beyond the standard library except a listed few, each with its
+// reason.
 package solver

@@ -1,6 +1,10 @@
 package solver
 
-import "math"
+import (
+	"math"
+
+	"gridstage/internal/portablemath"
+)
 
 // hessFloor is the probability below which a grid point is left out of
 // the Hessian's sums (never out of the gradient's): its terms change an
@@ -26,7 +30,7 @@ func evaluate(a, e, dev []float64, L int, g []float64) (best, s float64) {
 	case 2:
 		var g0, g1 float64
 		for j, x := range a {
-			ej := math.Exp(x - best)
+			ej := portablemath.Exp(x - best)
 			e[j] = ej
 			s += ej
 			g0 += float64(ej * dev[2*j])
@@ -36,7 +40,7 @@ func evaluate(a, e, dev []float64, L int, g []float64) (best, s float64) {
 	case 4:
 		var g0, g1, g2, g3 float64
 		for j, x := range a {
-			ej := math.Exp(x - best)
+			ej := portablemath.Exp(x - best)
 			e[j] = ej
 			s += ej
 			row := dev[4*j : 4*j+4]
@@ -50,7 +54,7 @@ func evaluate(a, e, dev []float64, L int, g []float64) (best, s float64) {
 		g = g[:L]
 		clear(g)
 		for j, x := range a {
-			ej := math.Exp(x - best)
+			ej := portablemath.Exp(x - best)
 			e[j] = ej
 			s += ej
 			for r, d := range dev[j*L : j*L+L] {

@@ -42,7 +42,7 @@ func (s *wolfe) run(dev []float64, n, L int) bool {
 	for j := 0; j < n; j++ {
 		var nn float64
 		for _, d := range row(j) {
-			nn += d * d
+			nn += float64(d * d)
 		}
 		scale = math.Max(scale, nn)
 		if nn < dot(row(best), row(best)) {
@@ -64,10 +64,10 @@ func (s *wolfe) run(dev []float64, n, L int) bool {
 			}
 		}
 		ww := dot(s.w, s.w)
-		if lo > 1e-12*math.Sqrt(ww*scale) && ww > 1e-24*scale {
+		if lo > 1e-12*math.Sqrt(float64(ww*scale)) && ww > 1e-24*scale {
 			return true
 		}
-		if lo >= ww-1e-12*scale || ww <= 1e-24*scale {
+		if lo >= ww-float64(1e-12*scale) || ww <= 1e-24*scale {
 			return false // w is (numerically) the minimum-norm point, at the origin
 		}
 		if inSet(s.set, arg) || len(s.set) > L {
@@ -92,7 +92,7 @@ func (s *wolfe) run(dev []float64, n, L int) bool {
 			}
 			k := 0
 			for i := range s.x {
-				xi := (1-theta)*s.x[i] + theta*s.v[i]
+				xi := float64((1-theta)*s.x[i]) + float64(theta*s.v[i])
 				if xi > 1e-15 {
 					s.set[k], s.x[k] = s.set[i], xi
 					k++
@@ -106,7 +106,7 @@ func (s *wolfe) run(dev []float64, n, L int) bool {
 		clear(s.w)
 		for i, j := range s.set {
 			for k, d := range row(j) {
-				s.w[k] += s.x[i] * d
+				s.w[k] += float64(s.x[i] * d)
 			}
 		}
 	}
@@ -165,15 +165,15 @@ func gaussSolve(a, b []float64, k int) bool {
 				continue
 			}
 			for j := c; j < k; j++ {
-				a[r*k+j] -= f * a[c*k+j]
+				a[r*k+j] -= float64(f * a[c*k+j])
 			}
-			b[r] -= f * b[c]
+			b[r] -= float64(f * b[c])
 		}
 	}
 	for c := k - 1; c >= 0; c-- {
 		s := b[c]
 		for j := c + 1; j < k; j++ {
-			s -= a[c*k+j] * b[j]
+			s -= float64(a[c*k+j] * b[j])
 		}
 		b[c] = s / a[c*k+c]
 	}
@@ -183,7 +183,7 @@ func gaussSolve(a, b []float64, k int) bool {
 func dot(a, b []float64) float64 {
 	var s float64
 	for i := range a {
-		s += a[i] * b[i]
+		s += float64(a[i] * b[i])
 	}
 	return s
 }

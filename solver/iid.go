@@ -3,6 +3,8 @@ package solver
 import (
 	"fmt"
 	"math"
+
+	"gridstage/internal/portablemath"
 )
 
 // IID is a static distribution to be replaced by a discrete one: the draws
@@ -59,7 +61,7 @@ func (p IID) Discretize(s Settings) (*Discrete, error) {
 	if width == 0 {
 		width = DefaultWidth(n)
 	}
-	a, b := math.Max(lo, mean-width*sd), math.Min(hi, mean+width*sd)
+	a, b := math.Max(lo, mean-float64(width*sd)), math.Min(hi, mean+float64(width*sd))
 	if bounded && s.Width == 0 {
 		a, b = lo, hi
 	}
@@ -70,18 +72,18 @@ func (p IID) Discretize(s Settings) (*Discrete, error) {
 		nodes, logW = logHermiteGrid(n, ln.Mu, ln.Sigma)
 	case s.Nodes == NodesGaussHermite && (!math.IsInf(lo, -1) || !math.IsInf(hi, 1)):
 		return nil, fmt.Errorf("solver: %s nodes do not suit a distribution on a bounded or half-bounded support: want lattice, gauss-legendre or equal-mass", s.Nodes)
-	case s.Nodes == NodesLattice && (a > mean-width*sd || b < mean+width*sd):
+	case s.Nodes == NodesLattice && (a > mean-float64(width*sd) || b < mean+float64(width*sd)):
 		h := (b - a) / float64(n)
 		nodes, logW = make([]float64, n), make([]float64, n)
 		for j := range nodes {
-			nodes[j] = a + h*(float64(j)+0.5)
-			logW[j] = math.Log(h)
+			nodes[j] = a + float64(h*(float64(j)+0.5))
+			logW[j] = portablemath.Log(h)
 		}
 	case s.Nodes == NodesGaussLegendre:
 		r := GaussLegendre(n, a, b)
 		nodes, logW = r.Nodes, make([]float64, n)
 		for j, w := range r.Weights {
-			logW[j] = math.Log(w)
+			logW[j] = portablemath.Log(w)
 		}
 	default:
 		nodes, logW = placeGrid(s.Nodes, n, mean, sd, width, p.Dist)
@@ -101,7 +103,7 @@ func (p IID) Conditional([]float64) Moments {
 	sk, _ := p.Dist.StdMoment(3)
 	ku, _ := p.Dist.StdMoment(4)
 	sd := p.Dist.StdDev()
-	return Moments{Mean: p.Dist.Mean(), Var: sd * sd, Skew: sk, Kurt: ku}
+	return Moments{Mean: p.Dist.Mean(), Var: float64(sd * sd), Skew: sk, Kurt: ku}
 }
 
 // Unconditional returns the distribution's moments with autocorrelation 0.
@@ -138,12 +140,12 @@ func (d *Discrete) Chain() *Chain {
 // Gauss-Hermite rule itself.
 func logHermiteGrid(n int, mu, sigma float64) (nodes, logW []float64) {
 	r := GaussHermite(n)
-	scale := math.Sqrt2 * sigma
+	scale := float64(math.Sqrt2 * sigma)
 	nodes, logW = make([]float64, n), make([]float64, n)
 	for j, z := range r.Nodes {
-		y := mu + scale*z
-		nodes[j] = math.Exp(y)
-		logW[j] = math.Log(r.Weights[j]) + z*z + math.Log(scale) + y
+		y := mu + float64(scale*z)
+		nodes[j] = portablemath.Exp(y)
+		logW[j] = portablemath.Log(r.Weights[j]) + float64(z*z) + portablemath.Log(scale) + y
 	}
 	return nodes, logW
 }

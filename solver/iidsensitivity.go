@@ -3,6 +3,8 @@ package solver
 import (
 	"fmt"
 	"math"
+
+	"gridstage/internal/portablemath"
 )
 
 // lawParam is one parameter θ of an i.i.d. law and how the law moves with
@@ -26,7 +28,7 @@ func lawMotion(dist Distribution) ([]lawParam, func(x float64) float64, error) {
 	zero := func(int) float64 { return 0 }
 	switch d := dist.(type) {
 	case Normal:
-		v := d.Sigma * d.Sigma
+		v := float64(d.Sigma * d.Sigma)
 		return []lawParam{
 			{name: "mean", dMean: 1, dLogPdf: func(x float64) float64 { return (x - d.Mu) / v }, dStd: zero},
 			{name: "sd", dSD: 1, dLogPdf: func(x float64) float64 { u := x - d.Mu; return -1/d.Sigma + u*u/(v*d.Sigma) }, dStd: zero},
@@ -52,10 +54,10 @@ func lawMotion(dist Distribution) ([]lawParam, func(x float64) float64, error) {
 		g := func(x float64) (u, r float64) { u = (x - d.Loc) / s; return u, 1 + u*u/nu }
 		root := math.Sqrt(nu / (nu - 2))
 		return []lawParam{
-			{name: "nu", dSD: s / (2 * root) * (-2 / ((nu - 2) * (nu - 2))), shape: true,
+			{name: "nu", dSD: float64(s / (2 * root) * (-2 / ((nu - 2) * (nu - 2)))), shape: true,
 				dLogPdf: func(x float64) float64 {
 					u, r := g(x)
-					return -math.Log(r)/2 + (nu+1)/2*u*u/(nu*nu*r)
+					return -portablemath.Log(r)/2 + (nu+1)/2*u*u/(nu*nu*r)
 				},
 				// E z^k = (ν−2)^{k/2−1} Π_{i=2}^{k/2} (2i−1)/(ν−2i) for even
 				// k < ν (standardized Student t; odd moments vanish).
@@ -68,7 +70,7 @@ func lawMotion(dist Distribution) ([]lawParam, func(x float64) float64, error) {
 					for i := 2; i <= k/2; i++ {
 						dlog -= 1 / (nu - float64(2*i))
 					}
-					return m * dlog
+					return float64(m * dlog)
 				}},
 			{name: "location", dMean: 1, dStd: zero, dLogPdf: func(x float64) float64 {
 				u, r := g(x)
@@ -82,14 +84,14 @@ func lawMotion(dist Distribution) ([]lawParam, func(x float64) float64, error) {
 	case LogNormal:
 		mu, sg := d.Mu, d.Sigma
 		m, sd := d.Mean(), d.StdDev()
-		w := math.Exp(sg * sg)
-		em1 := math.Expm1(sg * sg)
-		score := func(x float64) float64 { return -1/x - (math.Log(x)-mu)/(sg*sg*x) }
+		w := portablemath.Exp(float64(sg * sg))
+		em1 := portablemath.Expm1(float64(sg * sg))
+		score := func(x float64) float64 { return -1/x - (portablemath.Log(x)-mu)/(sg*sg*x) }
 		return []lawParam{
 			{name: "log_mean", dMean: m, dSD: sd, dStd: zero,
-				dLogPdf: func(x float64) float64 { return (math.Log(x) - mu) / (sg * sg) }},
-			{name: "log_sd", dMean: sg * m, dSD: sg*sd + m*sg*w/math.Sqrt(em1), shape: true,
-				dLogPdf: func(x float64) float64 { y := math.Log(x) - mu; return -1/sg + y*y/(sg*sg*sg) },
+				dLogPdf: func(x float64) float64 { return (portablemath.Log(x) - mu) / (sg * sg) }},
+			{name: "log_sd", dMean: float64(sg * m), dSD: float64(sg*sd) + m*sg*w/math.Sqrt(em1), shape: true,
+				dLogPdf: func(x float64) float64 { y := portablemath.Log(x) - mu; return -1/sg + y*y/(sg*sg*sg) },
 				// The k-th standardized moment is c_k/(e^{σ²}−1)^{k/2}, c_k
 				// the central moment of Y = X/EX, whose raw moments are
 				// r_j = exp(j(j−1)σ²/2) (see LogNormal.StdMoment).
@@ -104,12 +106,12 @@ func lawMotion(dist Distribution) ([]lawParam, func(x float64) float64, error) {
 							sign = -1
 						}
 						jj := float64(j)
-						r := math.Exp(jj * (jj - 1) * sg * sg / 2)
+						r := portablemath.Exp(jj * (jj - 1) * sg * sg / 2)
 						b := binomial(k, j)
-						c += sign * b * r
-						dc += sign * b * jj * (jj - 1) * sg * r
+						c += float64(sign * b * r)
+						dc += float64(sign * b * jj * (jj - 1) * sg * r)
 					}
-					den := math.Pow(em1, float64(k)/2)
+					den := portablemath.Pow(em1, float64(k)/2)
 					return dc/den - float64(k)/2*c/den*(2*sg*w)/em1
 				}},
 		}, score, nil
@@ -154,9 +156,9 @@ func (p IID) Sensitivities(s Settings) (*Chain, *Sensitivity, error) {
 	if width == 0 {
 		width = DefaultWidth(n)
 	}
-	a, b := math.Max(lo, mean-width*sd), math.Min(hi, mean+width*sd)
+	a, b := math.Max(lo, mean-float64(width*sd)), math.Min(hi, mean+float64(width*sd))
 	_, isLogNormal := p.Dist.(LogNormal)
-	clipped := a > mean-width*sd || b < mean+width*sd
+	clipped := a > mean-float64(width*sd) || b < mean+float64(width*sd)
 
 	// Multipliers of the one row, as Discretize solved it.
 	shock := Standardized{p.Dist}
@@ -184,20 +186,20 @@ func (p IID) Sensitivities(s Settings) (*Chain, *Sensitivity, error) {
 			// x_j = exp(μ + √2σ ξ_j); log W_j = … + log(√2σ) + y_j.
 			ln := p.Dist.(LogNormal)
 			for j, x := range d.Nodes {
-				xi := (math.Log(x) - ln.Mu) / (math.Sqrt2 * ln.Sigma)
+				xi := (portablemath.Log(x) - ln.Mu) / (math.Sqrt2 * ln.Sigma)
 				if prm.name == "log_mean" {
 					dx[j], dlogW[j] = x, 1
 				} else {
-					dx[j], dlogW[j] = math.Sqrt2*xi*x, 1/ln.Sigma+math.Sqrt2*xi
+					dx[j], dlogW[j] = float64(math.Sqrt2*xi*x), 1/ln.Sigma+float64(math.Sqrt2*xi)
 				}
 			}
 		case clipped && (s.Nodes == NodesLattice || s.Nodes == NodesGaussLegendre):
 			// Points over [a, b], an end held by the support.
-			da, db := prm.dMean-width*prm.dSD, prm.dMean+width*prm.dSD
-			if a > mean-width*sd {
+			da, db := prm.dMean-float64(width*prm.dSD), prm.dMean+float64(width*prm.dSD)
+			if a > mean-float64(width*sd) {
 				da = 0
 			}
-			if b < mean+width*sd {
+			if b < mean+float64(width*sd) {
 				db = 0
 			}
 			for j, x := range d.Nodes {
@@ -208,7 +210,7 @@ func (p IID) Sensitivities(s Settings) (*Chain, *Sensitivity, error) {
 			for j, x := range d.Nodes {
 				dx[j] = prm.dMean + prm.dSD*(x-mean)/sd
 				if s.Nodes == NodesEqualMass {
-					dlogW[j] = -(score(x)*dx[j] + prm.dLogPdf(x))
+					dlogW[j] = -(float64(score(x)*dx[j]) + prm.dLogPdf(x))
 				}
 			}
 		}
@@ -218,12 +220,12 @@ func (p IID) Sensitivities(s Settings) (*Chain, *Sensitivity, error) {
 		dlogq, dDev := make([]float64, n), make([]float64, n*L)
 		for j, x := range d.Nodes {
 			z := (x - mean) / sd
-			dz := (dx[j] - prm.dMean - z*prm.dSD) / sd
-			dlogq[j] = dlogW[j] + prm.dSD/sd + score(x)*dx[j] + prm.dLogPdf(x)
+			dz := (dx[j] - prm.dMean - float64(z*prm.dSD)) / sd
+			dlogq[j] = dlogW[j] + prm.dSD/sd + float64(score(x)*dx[j]) + prm.dLogPdf(x)
 			pow := 1.0 // z^{k−1}
 			for k := 1; k <= L; k++ {
-				dDev[j*L+k-1] = float64(k)*pow*dz - prm.dStd(k)
-				pow *= z
+				dDev[j*L+k-1] = float64(float64(k)*pow*dz) - prm.dStd(k)
+				pow = float64(pow * z)
 			}
 		}
 		dev := make([]float64, n*L)
@@ -264,7 +266,7 @@ func iidLogWeights(p IID, s Settings, nodes []float64) []float64 {
 	if width == 0 {
 		width = DefaultWidth(n)
 	}
-	a, b := math.Max(lo, mean-width*sd), math.Min(hi, mean+width*sd)
+	a, b := math.Max(lo, mean-float64(width*sd)), math.Min(hi, mean+float64(width*sd))
 	if bounded && s.Width == 0 {
 		a, b = lo, hi
 	}
@@ -273,17 +275,17 @@ func iidLogWeights(p IID, s Settings, nodes []float64) []float64 {
 	case s.Nodes == NodesGaussHermite && isLogNormal:
 		_, logW := logHermiteGrid(n, ln.Mu, ln.Sigma)
 		return logW
-	case s.Nodes == NodesLattice && (a > mean-width*sd || b < mean+width*sd):
+	case s.Nodes == NodesLattice && (a > mean-float64(width*sd) || b < mean+float64(width*sd)):
 		logW := make([]float64, n)
 		for j := range logW {
-			logW[j] = math.Log((b - a) / float64(n))
+			logW[j] = portablemath.Log((b - a) / float64(n))
 		}
 		return logW
 	case s.Nodes == NodesGaussLegendre:
 		r := GaussLegendre(n, a, b)
 		logW := make([]float64, n)
 		for j, w := range r.Weights {
-			logW[j] = math.Log(w)
+			logW[j] = portablemath.Log(w)
 		}
 		return logW
 	}
@@ -305,16 +307,16 @@ func penaltyMotion(shock Distribution, lam []float64, dStd func(k int) float64) 
 	for k := 1; k <= cols; k++ {
 		a, okA := shock.StdMoment(2 * k)
 		m, okB := shock.StdMoment(k)
-		if !(okA && okB && a-m*m > 0) {
+		if !(okA && okB && a-float64(m*m) > 0) {
 			continue
 		}
 		s := scale[k-1]
-		ds := (dStd(2*k) - 2*m*dStd(k)) / (2 * s)
-		bend := smoothBend * math.Pow(smoothOrderRatio, float64(cols-k))
-		b, c := bend/s, smoothEps*bend*bend
+		ds := (dStd(2*k) - float64(2*m*dStd(k))) / (2 * s)
+		bend := float64(smoothBend * portablemath.Pow(smoothOrderRatio, float64(cols-k)))
+		b, c := bend/s, float64(smoothEps*bend*bend)
 		db := -b * ds / s
 		x := lam[k-1] / b
-		out[k-1] = (-(c/(b*b))*math.Sinh(x) - c*lam[k-1]/(b*b*b)*math.Cosh(x)) * db
+		out[k-1] = float64((float64(-(c/(b*b))*portablemath.Sinh(x)) - float64(c*lam[k-1]/(b*b*b)*portablemath.Cosh(x))) * db)
 	}
 	return out
 }
@@ -350,7 +352,7 @@ func genericRowSens(p, lam, regH, dReg, z, targets, dev, dlogq, dDev []float64, 
 		}
 		clear(grad)
 		for j := 0; j < n; j++ {
-			w := p[j] * (abar[j] - ebar)
+			w := float64(p[j] * (abar[j] - ebar))
 			for k := 0; k < cols; k++ {
 				grad[k] += float64(w*dev[j*cols+k]) + float64(p[j]*dDev[j*L+k])
 			}
@@ -374,6 +376,6 @@ func genericRowSens(p, lam, regH, dReg, z, targets, dev, dlogq, dDev []float64, 
 			out[j] = 0
 			continue
 		}
-		out[j] = p[j] * (abar[j] - ebar)
+		out[j] = float64(p[j] * (abar[j] - ebar))
 	}
 }

@@ -3,6 +3,8 @@ package solver
 import (
 	"math"
 	"strconv"
+
+	"gridstage/internal/portablemath"
 )
 
 // LifeCycle is an age-varying (life-cycle) first-order autoregression with
@@ -59,9 +61,9 @@ func (p LifeCycle) Validate() error {
 // Variances returns V_t = Var z_t for t = 0 … T: V_0 = σ_0², V_{t+1} = ρ_t² V_t + σ_t².
 func (p LifeCycle) Variances() []float64 {
 	v := make([]float64, p.Ages())
-	v[0] = p.InitialSD * p.InitialSD
+	v[0] = float64(p.InitialSD * p.InitialSD)
 	for t, r := range p.Rho {
-		v[t+1] = r*r*v[t] + p.Sigma[t]*p.Sigma[t]
+		v[t+1] = float64(r*r*v[t]) + float64(p.Sigma[t]*p.Sigma[t])
 	}
 	return v
 }
@@ -79,18 +81,18 @@ func (p LifeCycle) Marginal() []Summary {
 	}
 	out := make([]Summary, p.Ages())
 	s0 := p.InitialSD
-	k2 := s0 * s0
-	k3 := std(p.Initial, 3) * s0 * s0 * s0
-	k4 := (std(p.Initial, 4) - 3) * k2 * k2
-	out[0] = Summary{SD: s0, Skew: k3 / math.Pow(k2, 1.5), Kurt: 3 + k4/(k2*k2)}
+	k2 := float64(s0 * s0)
+	k3 := float64(std(p.Initial, 3) * s0 * s0 * s0)
+	k4 := float64((std(p.Initial, 4) - 3) * k2 * k2)
+	out[0] = Summary{SD: s0, Skew: k3 / portablemath.Pow(k2, 1.5), Kurt: 3 + k4/(k2*k2)}
 	for t, r := range p.Rho {
 		s := p.Sigma[t]
 		prev := k2
-		k2 = r*r*k2 + s*s
-		k3 = r*r*r*k3 + std(p.shock(t), 3)*s*s*s
-		k4 = r*r*r*r*k4 + (std(p.shock(t), 4)-3)*s*s*s*s
-		out[t+1] = Summary{SD: math.Sqrt(k2), Skew: k3 / math.Pow(k2, 1.5), Kurt: 3 + k4/(k2*k2),
-			Autocorr: r * math.Sqrt(prev/k2)}
+		k2 = float64(r*r*k2) + float64(s*s)
+		k3 = float64(r*r*r*k3) + float64(std(p.shock(t), 3)*s*s*s)
+		k4 = float64(r*r*r*r*k4) + float64((std(p.shock(t), 4)-3)*s*s*s*s)
+		out[t+1] = Summary{SD: math.Sqrt(k2), Skew: k3 / portablemath.Pow(k2, 1.5), Kurt: 3 + k4/(k2*k2),
+			Autocorr: float64(r * math.Sqrt(prev/k2))}
 	}
 	return out
 }
@@ -139,7 +141,7 @@ func (a *AgeChain) Marginals() [][]float64 {
 				continue
 			}
 			for j, q := range c.Transition[i*n : (i+1)*n] {
-				next[j] += w * q
+				next[j] += float64(w * q)
 			}
 		}
 		out[t+1] = next
@@ -182,14 +184,14 @@ func (p LifeCycle) Discretize(s Settings) (*AgeChain, error) {
 		case MaxEnt:
 			grids[t], logWs[t] = placeGrid(s.Nodes, n, 0, sd, s.Width, Normal{0, sd})
 		case Rouwenhorst:
-			psi := RouwenhorstWidth(n) * sd
+			psi := float64(RouwenhorstWidth(n) * sd)
 			grids[t] = Trapezoid(n, -psi, psi).Nodes
 		case Tauchen:
 			w := s.Width
 			if w == 0 {
 				w = DefaultTauchenWidth
 			}
-			grids[t] = Trapezoid(n, -w*sd, w*sd).Nodes
+			grids[t] = Trapezoid(n, float64(-w*sd), float64(w*sd)).Nodes
 		default:
 			return nil, badChoice("method", s.Method.String(), "maxent, rouwenhorst or tauchen for a life-cycle process")
 		}
@@ -203,7 +205,7 @@ func (p LifeCycle) Discretize(s Settings) (*AgeChain, error) {
 		c := &Chain{Dim: 1, Grid: grids[t], Transition: make([]float64, n*n), Matched: make([]int, n), Method: s.Method, Moments: L}
 		law := conditional{Mean: make([]float64, n), SD: make([]float64, n), Shock: p.shock(t)}
 		for i, z := range grids[t] {
-			law.Mean[i] = p.Rho[t] * z
+			law.Mean[i] = float64(p.Rho[t] * z)
 			law.SD[i] = p.Sigma[t]
 		}
 		switch s.Method {
@@ -212,7 +214,7 @@ func (p LifeCycle) Discretize(s Settings) (*AgeChain, error) {
 			maxentRows(grids[t+1], logWs[t+1], law, L, s.Matching, c.Transition, c.Matched, c.Certificates)
 			c.PriorKL = scalarPriorKL(grids[t+1], logWs[t+1], law, c.Transition)
 		case Rouwenhorst:
-			pt := (1 + p.Rho[t]*math.Sqrt(vars[t]/vars[t+1])) / 2
+			pt := (1 + float64(p.Rho[t]*math.Sqrt(vars[t]/vars[t+1]))) / 2
 			rouwenhorstMatrix(n, pt, pt, c.Transition)
 			for i := range c.Matched {
 				c.Matched[i] = 2
@@ -237,7 +239,7 @@ func (p LifeCycle) Discretize(s Settings) (*AgeChain, error) {
 		ac.InitialMatched, ac.InitialCertificate = m[0], cert[0]
 	case Rouwenhorst:
 		for i := range ac.Initial {
-			ac.Initial[i] = binomial(n-1, i) * math.Pow(0.5, float64(n-1))
+			ac.Initial[i] = float64(binomial(n-1, i) * portablemath.Pow(0.5, float64(n-1)))
 		}
 		ac.InitialMatched = 2
 	case Tauchen:

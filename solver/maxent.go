@@ -1,6 +1,10 @@
 package solver
 
-import "math"
+import (
+	"math"
+
+	"gridstage/internal/portablemath"
+)
 
 // Tolerances of the dual Newton solver. Moment errors are measured in
 // standardized units (deviations divided by the conditional s.d.), so one
@@ -85,7 +89,7 @@ func (w *Dual) solve(logq, dev []float64, L int, lam0, p []float64, maxIter int)
 		return w.lam, true
 	}
 	best, sum := evaluate(w.a, w.p, dev, L, w.grad)
-	f := best + math.Log(sum)
+	f := best + portablemath.Log(sum)
 	w.accept(sum)
 	if !hullContainsZero(dev, n, L) {
 		return w.lam, false
@@ -162,7 +166,7 @@ func (w *Dual) solve(logq, dev []float64, L int, lam0, p []float64, maxIter int)
 				w.aTry[j] = a + float64(t*w.shift[j])
 			}
 			best, sum := evaluate(w.aTry, w.pTry, dev, L, w.trial)
-			ft := best + math.Log(sum)
+			ft := best + portablemath.Log(sum)
 			if ft <= f+float64(1e-4*t*slope) || quadratic {
 				f = ft
 				w.a, w.aTry = w.aTry, w.a
@@ -256,7 +260,7 @@ func normalize(a, p []float64) float64 {
 	}
 	var s float64
 	for j, x := range a {
-		e := math.Exp(x - best)
+		e := portablemath.Exp(x - best)
 		p[j] = e
 		s += e
 	}
@@ -264,7 +268,7 @@ func normalize(a, p []float64) float64 {
 	for j := range p {
 		p[j] = float64(p[j] * inv)
 	}
-	return best + math.Log(s)
+	return best + portablemath.Log(s)
 }
 
 // moments sets w.grad = Σ_j p_j dev_j (the current moment error) and the

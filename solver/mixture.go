@@ -3,7 +3,7 @@ package solver
 import (
 	"math"
 
-	"gonum.org/v1/gonum/stat/distuv"
+	"gridstage/internal/portablemath"
 )
 
 // Mixture is a finite mixture of normal distributions: with probability
@@ -17,7 +17,7 @@ func (d Mixture) LogProb(x float64) float64 {
 	best := math.Inf(-1)
 	logs := make([]float64, len(d.Weights))
 	for c := range d.Weights {
-		logs[c] = math.Log(d.Weights[c]) + Normal{d.Means[c], d.SDs[c]}.LogProb(x)
+		logs[c] = portablemath.Log(d.Weights[c]) + Normal{d.Means[c], d.SDs[c]}.LogProb(x)
 		best = math.Max(best, logs[c])
 	}
 	if math.IsInf(best, -1) {
@@ -25,15 +25,15 @@ func (d Mixture) LogProb(x float64) float64 {
 	}
 	var s float64
 	for _, l := range logs {
-		s += math.Exp(l - best)
+		s += portablemath.Exp(l - best)
 	}
-	return best + math.Log(s)
+	return best + portablemath.Log(s)
 }
 
 func (d Mixture) CDF(x float64) float64 {
 	var s float64
 	for c := range d.Weights {
-		s += d.Weights[c] * distuv.Normal{Mu: d.Means[c], Sigma: d.SDs[c]}.CDF(x)
+		s += float64(d.Weights[c] * Normal{Mu: d.Means[c], Sigma: d.SDs[c]}.CDF(x))
 	}
 	return s
 }
@@ -42,7 +42,7 @@ func (d Mixture) CDF(x float64) float64 {
 func (d Mixture) Quantile(p float64) float64 {
 	lo, hi := math.Inf(1), math.Inf(-1)
 	for c := range d.Weights {
-		q := distuv.Normal{Mu: d.Means[c], Sigma: d.SDs[c]}
+		q := Normal{Mu: d.Means[c], Sigma: d.SDs[c]}
 		lo = math.Min(lo, q.Quantile(p))
 		hi = math.Max(hi, q.Quantile(p))
 	}
@@ -60,7 +60,7 @@ func (d Mixture) Quantile(p float64) float64 {
 func (d Mixture) Mean() float64 {
 	var m float64
 	for c, w := range d.Weights {
-		m += w * d.Means[c]
+		m += float64(w * d.Means[c])
 	}
 	return m
 }
@@ -72,7 +72,7 @@ func (d Mixture) central(k int) float64 {
 	for c, w := range d.Weights {
 		delta := d.Means[c] - mu
 		for j := 0; j <= k; j += 2 { // odd normal moments vanish
-			s += w * binomial(k, j) * math.Pow(delta, float64(k-j)) * math.Pow(d.SDs[c], float64(j)) * normalStdMoment(j)
+			s += float64(w * binomial(k, j) * portablemath.Pow(delta, float64(k-j)) * portablemath.Pow(d.SDs[c], float64(j)) * normalStdMoment(j))
 		}
 	}
 	return s

@@ -41,20 +41,20 @@ func powerMomentsSeparator(z, targets []float64) (y []float64, decided bool) {
 		coef[0] = 1
 		for deg, r := range z {
 			for k := deg + 1; k >= 1; k-- {
-				coef[k] = coef[k-1] - r*coef[k]
+				coef[k] = coef[k-1] - float64(r*coef[k])
 			}
-			coef[0] = -r * coef[0]
+			coef[0] = float64(-r * coef[0])
 		}
 		e := coef[0]
 		for k := 1; k <= n; k++ {
-			e += coef[k] * targets[k-1]
+			e += float64(coef[k] * targets[k-1])
 		}
 		if e == 0 {
 			return nil, true
 		}
 		y = make([]float64, L)
 		for k := 1; k <= n; k++ {
-			y[k-1] = -math.Copysign(1, e) * coef[k]
+			y[k-1] = float64(-math.Copysign(1, e) * coef[k])
 		}
 		return y, true
 	}
@@ -105,7 +105,7 @@ func powerMomentsSeparator(z, targets []float64) (y []float64, decided bool) {
 	}
 	y = make([]float64, L)
 	for k := range y {
-		y[k] = sign * coef[k+1]
+		y[k] = float64(sign * coef[k+1])
 	}
 	return y, true
 }
@@ -122,14 +122,14 @@ func facetAdmits(z []float64, members []int, moments, coef []float64) (bool, flo
 		r := z[s]
 		deg++
 		for k := deg; k >= 1; k-- {
-			coef[k] = coef[k-1] - r*coef[k]
+			coef[k] = coef[k-1] - float64(r*coef[k])
 		}
-		coef[0] = -r * coef[0]
+		coef[0] = float64(-r * coef[0])
 	}
 	var e, size float64
 	for k, c := range coef {
-		e += c * moments[k]
-		size += math.Abs(c) * math.Abs(moments[k])
+		e += float64(c * moments[k])
+		size += float64(math.Abs(c) * math.Abs(moments[k]))
 	}
 	// On a grid point j outside S, P_S(z_j) has the sign (−1)^m, m the
 	// number of members above j; Gale's condition makes m's parity the same

@@ -3,22 +3,28 @@ package solver
 import (
 	"math"
 
-	"gonum.org/v1/gonum/stat/distuv"
+	"gridstage/internal/portablemath"
 )
 
 // Normal is N(Mu, Sigma²).
 type Normal struct{ Mu, Sigma float64 }
 
-func (d Normal) dist() distuv.Normal { return distuv.Normal{Mu: d.Mu, Sigma: d.Sigma} }
-
 func (d Normal) LogProb(x float64) float64 {
 	z := (x - d.Mu) / d.Sigma
-	return -0.5*z*z - math.Log(d.Sigma) - 0.5*math.Log(2*math.Pi)
+	return float64(-0.5*z*z) - portablemath.Log(d.Sigma) - float64(0.5*portablemath.Log(2*math.Pi))
 }
-func (d Normal) CDF(x float64) float64      { return d.dist().CDF(x) }
-func (d Normal) Quantile(p float64) float64 { return d.dist().Quantile(p) }
-func (d Normal) Mean() float64              { return d.Mu }
-func (d Normal) StdDev() float64            { return d.Sigma }
+
+// CDF is ½ erfc(−(x−μ)/(σ√2)).
+func (d Normal) CDF(x float64) float64 {
+	return float64(0.5 * portablemath.Erfc(-(x-d.Mu)/(d.Sigma*math.Sqrt2)))
+}
+
+// Quantile is μ + σ Φ⁻¹(p); it panics if p is outside [0, 1].
+func (d Normal) Quantile(p float64) float64 {
+	return d.Mu + float64(d.Sigma*portablemath.NormalQuantile(p))
+}
+func (d Normal) Mean() float64   { return d.Mu }
+func (d Normal) StdDev() float64 { return d.Sigma }
 func (d Normal) StdMoment(k int) (float64, bool) {
 	return normalStdMoment(k), true
 }

@@ -2,8 +2,6 @@ package solver
 
 import (
 	"math"
-
-	"gonum.org/v1/gonum/mat"
 )
 
 // jacobi holds the three-term recurrence of a family of orthonormal
@@ -22,18 +20,10 @@ type jacobi struct {
 // relative accuracy of the tiny weights in the tails, which the eigenvector
 // formula loses.
 func gaussRule(j jacobi, n int) (nodes, weights []float64) {
-	sym := mat.NewSymDense(n, nil)
-	for k := 0; k < n; k++ {
-		sym.SetSym(k, k, j.alpha[k])
-		if k+1 < n {
-			sym.SetSym(k, k+1, j.beta[k])
-		}
-	}
-	var eig mat.EigenSym
-	if !eig.Factorize(sym, false) {
+	nodes, ok := tridiagEigenvalues(j.alpha[:n], j.beta[:n])
+	if !ok {
 		panic("solver: Jacobi eigen-decomposition failed")
 	}
-	nodes = eig.Values(nil) // ascending
 	weights = make([]float64, n)
 	for i, x := range nodes {
 		for it := 0; it < 3; it++ {
@@ -60,9 +50,9 @@ func orthoEval(j jacobi, n int, x float64) (pn, dpn, sumSq float64) {
 	var pPrev, dPrev float64
 	p, d := p0, 0.0
 	for k := 0; k < n; k++ {
-		sumSq += p * p
-		pNext := ((x-j.alpha[k])*p - betaAt(j, k-1)*pPrev) / j.beta[k]
-		dNext := (p + (x-j.alpha[k])*d - betaAt(j, k-1)*dPrev) / j.beta[k]
+		sumSq += float64(p * p)
+		pNext := (float64((x-j.alpha[k])*p) - float64(betaAt(j, k-1)*pPrev)) / j.beta[k]
+		dNext := (p + float64((x-j.alpha[k])*d) - float64(betaAt(j, k-1)*dPrev)) / j.beta[k]
 		pPrev, dPrev = p, d
 		p, d = pNext, dNext
 	}

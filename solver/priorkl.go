@@ -1,6 +1,10 @@
 package solver
 
-import "math"
+import (
+	"math"
+
+	"gridstage/internal/portablemath"
+)
 
 // The Kullback-Leibler divergence of each maximum-entropy row from the
 // prior it started from,
@@ -27,17 +31,17 @@ func rowKL(logq, row []float64) float64 {
 	var z float64
 	for _, a := range logq {
 		if a-top > -60 {
-			z += math.Exp(a - top)
+			z += portablemath.Exp(a - top)
 		}
 	}
-	logZ := top + math.Log(z)
+	logZ := top + portablemath.Log(z)
 	var kl float64
 	for j, p := range row {
 		switch {
 		case p >= 1e-30:
-			kl += p * (math.Log(p) - (logq[j] - logZ))
+			kl += float64(p * (portablemath.Log(p) - (logq[j] - logZ)))
 		case p > 0:
-			kl -= p * (logq[j] - logZ)
+			kl -= float64(p * (logq[j] - logZ))
 		}
 	}
 	// Rounding can leave a tiny negative number for a row equal to its prior.
@@ -61,7 +65,7 @@ func scalarPriorKL(nodes, logW []float64, law conditional, trans []float64) []fl
 		for j, x := range nodes {
 			z := (x - law.Mean[i]) / law.SD[i]
 			if law.Shock == nil {
-				logq[j] = logW[j] - 0.5*z*z
+				logq[j] = logW[j] - float64(0.5*z*z)
 			} else {
 				logq[j] = logW[j] + law.Shock.LogProb(z)
 			}
@@ -94,7 +98,7 @@ func vectorPriorKL(grid, logW []float64, law gaussianVectorLaw, trans []float64)
 			var q float64
 			for k, v := range y[j*d : (j+1)*d] {
 				e := v - ci[k]
-				q += e * e
+				q += float64(e * e)
 			}
 			logq[j] = logW[j] - q/2
 		}
@@ -112,7 +116,7 @@ func whiten(chol []float64, d int, vs []float64) []float64 {
 		for r := 0; r < d; r++ {
 			s := v[r]
 			for k := 0; k < r; k++ {
-				s -= chol[r*d+k] * z[k]
+				s -= float64(chol[r*d+k] * z[k])
 			}
 			z[r] = s / chol[r*d+r]
 		}

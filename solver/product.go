@@ -66,7 +66,7 @@ func kron(a, b *Chain) *Chain {
 			for j, p := range a.Row(i) {
 				seg := row[j*nb : (j+1)*nb]
 				for m, q := range rb {
-					seg[m] = p * q
+					seg[m] = float64(p * q)
 				}
 			}
 		}
@@ -191,7 +191,7 @@ func outerLaw(a, b []float64) []float64 {
 	out := make([]float64, 0, len(a)*len(b))
 	for _, p := range a {
 		for _, q := range b {
-			out = append(out, p*q)
+			out = append(out, float64(p*q))
 		}
 	}
 	return out

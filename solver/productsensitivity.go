@@ -64,7 +64,7 @@ func kronMatrix(a []float64, na int, b []float64, nb int) []float64 {
 			for j := 0; j < na; j++ {
 				p := a[i*na+j]
 				for m := 0; m < nb; m++ {
-					row[j*nb+m] = p * b[k*nb+m]
+					row[j*nb+m] = float64(p * b[k*nb+m])
 				}
 			}
 		}

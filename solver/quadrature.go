@@ -4,6 +4,8 @@ import (
 	"fmt"
 	"math"
 	"strings"
+
+	"gridstage/internal/portablemath"
 )
 
 // Rule is a quadrature rule: ∫ g(x) ω(x) dx ≈ Σ_i Weights[i] g(Nodes[i]) for
@@ -37,13 +39,13 @@ func GaussLegendre(n int, a, b float64) Rule {
 	j := jacobi{alpha: make([]float64, n), beta: make([]float64, n), mu0: 2}
 	for k := 0; k < n; k++ {
 		kk := float64(k + 1)
-		j.beta[k] = kk / math.Sqrt(4*kk*kk-1)
+		j.beta[k] = kk / math.Sqrt(float64(4*kk*kk)-1)
 	}
 	x, w := gaussRule(j, n)
 	half, mid := (b-a)/2, (a+b)/2
 	for i := range x {
-		x[i] = mid + half*x[i]
-		w[i] *= half
+		x[i] = mid + float64(half*x[i])
+		w[i] = float64(w[i] * half)
 	}
 	return Rule{Nodes: x, Weights: w}
 }
@@ -57,7 +59,7 @@ func Trapezoid(n int, a, b float64) Rule {
 	h := (b - a) / float64(n-1)
 	r := Rule{Nodes: make([]float64, n), Weights: make([]float64, n)}
 	for i := range r.Nodes {
-		r.Nodes[i] = a + h*float64(i)
+		r.Nodes[i] = a + float64(h*float64(i))
 		r.Weights[i] = h
 	}
 	r.Nodes[n-1] = b
@@ -140,27 +142,27 @@ func placeGrid(rule NodeRule, n int, mean, sd, width float64, shape Distribution
 	logW = make([]float64, n)
 	switch rule {
 	case NodesLattice:
-		r = Trapezoid(n, mean-width*sd, mean+width*sd)
+		r = Trapezoid(n, mean-float64(width*sd), mean+float64(width*sd))
 		for i, w := range r.Weights {
-			logW[i] = math.Log(w)
+			logW[i] = portablemath.Log(w)
 		}
 	case NodesGaussLegendre:
-		r = GaussLegendre(n, mean-width*sd, mean+width*sd)
+		r = GaussLegendre(n, mean-float64(width*sd), mean+float64(width*sd))
 		for i, w := range r.Weights {
-			logW[i] = math.Log(w)
+			logW[i] = portablemath.Log(w)
 		}
 	case NodesGaussHermite:
 		r = GaussHermite(n)
-		scale := math.Sqrt2 * sd
+		scale := float64(math.Sqrt2 * sd)
 		for i, z := range r.Nodes {
 			// ω(z) = e^{−z²}: Lebesgue weight in x = μ + √2 s z is w e^{z²} √2 s.
-			logW[i] = math.Log(r.Weights[i]) + z*z + math.Log(scale)
-			r.Nodes[i] = mean + scale*z
+			logW[i] = portablemath.Log(r.Weights[i]) + float64(z*z) + portablemath.Log(scale)
+			r.Nodes[i] = mean + float64(scale*z)
 		}
 	case NodesEqualMass:
 		r = Quantiles(n, shape)
 		for i, x := range r.Nodes {
-			logW[i] = -math.Log(float64(n)) - shape.LogProb(x)
+			logW[i] = -portablemath.Log(float64(n)) - shape.LogProb(x)
 		}
 	default:
 		panic(fmt.Sprintf("solver: unknown node rule %d", int(rule)))

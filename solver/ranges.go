@@ -60,7 +60,7 @@ func checkScale(name string, sd float64) error {
 // checkMean refuses a mean too far from 0 relative to its s.d.
 func checkMean(name string, mean, sd float64) error {
 	if math.Abs(mean) > MaxMeanRatio*sd {
-		return badParam(name, mean, "at most 1e6 stationary standard deviations ("+strconv.FormatFloat(MaxMeanRatio*sd, 'g', 4, 64)+") from 0: farther the grid collapses in double precision (subtract the mean first)")
+		return badParam(name, mean, "at most 1e6 stationary standard deviations ("+strconv.FormatFloat(float64(MaxMeanRatio*sd), 'g', 4, 64)+") from 0: farther the grid collapses in double precision (subtract the mean first)")
 	}
 	return nil
 }

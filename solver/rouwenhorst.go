@@ -18,10 +18,10 @@ func rouwenhorstMatrix(n int, p, q float64, trans []float64) {
 		for r := 0; r < k; r++ {
 			for c := 0; c < k; c++ {
 				v := prev[r*k+c]
-				cur[r*m+c] += p * v
-				cur[r*m+c+1] += (1 - p) * v
-				cur[(r+1)*m+c] += (1 - q) * v
-				cur[(r+1)*m+c+1] += q * v
+				cur[r*m+c] += float64(p * v)
+				cur[r*m+c+1] += float64((1 - p) * v)
+				cur[(r+1)*m+c] += float64((1 - q) * v)
+				cur[(r+1)*m+c+1] += float64(q * v)
 			}
 		}
 		for r := 1; r < m-1; r++ {

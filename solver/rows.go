@@ -1,6 +1,10 @@
 package solver
 
-import "math"
+import (
+	"math"
+
+	"gridstage/internal/portablemath"
+)
 
 // conditional describes the law of next period's level given current state
 // i: x' = Mean[i] + SD[i]·Z with Z drawn from Shock (mean 0, variance 1).
@@ -47,11 +51,11 @@ func shockScales(shock Distribution, L int) []float64 {
 		if shock != nil {
 			a, okA := shock.StdMoment(2 * k)
 			b, okB := shock.StdMoment(k)
-			if okA && okB && a-b*b > 0 {
+			if okA && okB && a-float64(b*b) > 0 {
 				m2k, mk = a, b
 			}
 		}
-		s[k-1] = math.Sqrt(m2k - mk*mk)
+		s[k-1] = math.Sqrt(m2k - float64(mk*mk))
 	}
 	return s
 }
@@ -118,7 +122,7 @@ func maxentRowsKeep(nodes, logW []float64, law conditional, L int, match Matchin
 		for j, x := range nodes {
 			z[j] = (x - mi) / s
 			if law.Shock == nil {
-				logq[j] = logW[j] - 0.5*z[j]*z[j]
+				logq[j] = logW[j] - float64(0.5*z[j]*z[j])
 			} else {
 				logq[j] = logW[j] + law.Shock.LogProb(z[j])
 			}
@@ -170,7 +174,7 @@ func fillDeviations(z, targets, dev []float64) {
 	for j, zj := range z {
 		pow := 1.0
 		for k := 0; k < L; k++ {
-			pow *= zj
+			pow = float64(pow * zj)
 			dev[j*L+k] = pow - targets[k]
 		}
 	}
@@ -184,7 +188,7 @@ func priorRow(logq, row []float64) {
 	}
 	var s float64
 	for j, a := range logq {
-		row[j] = math.Exp(a - best)
+		row[j] = portablemath.Exp(a - best)
 		s += row[j]
 	}
 	for j := range row {
@@ -203,7 +207,7 @@ func priorRows(nodes, logW []float64, law conditional, trans []float64, matched 
 		for j, x := range nodes {
 			z := (x - law.Mean[i]) / law.SD[i]
 			if law.Shock == nil {
-				logq[j] = logW[j] - 0.5*z*z
+				logq[j] = logW[j] - float64(0.5*z*z)
 			} else {
 				logq[j] = logW[j] + law.Shock.LogProb(z)
 			}
@@ -212,7 +216,7 @@ func priorRows(nodes, logW []float64, law conditional, trans []float64, matched 
 		row := trans[i*n : (i+1)*n]
 		var sum float64
 		for j := range row {
-			row[j] = math.Exp(logq[j] - top)
+			row[j] = portablemath.Exp(logq[j] - top)
 			sum += row[j]
 		}
 		for j := range row {

@@ -73,13 +73,13 @@ func (s Standardized) Score(z float64) float64 {
 		return math.NaN()
 	}
 	sd := s.Base.StdDev()
-	return sd * b.Score(s.Base.Mean()+sd*z)
+	return float64(sd * b.Score(s.Base.Mean()+float64(sd*z)))
 }
 
 // Score is d log f/dx = −(ν+1)(x − loc)/(ν s² + (x − loc)²).
 func (d StudentT) Score(x float64) float64 {
 	u := x - d.Loc
-	return -(d.Nu + 1) * u / (float64(d.Nu*d.Scale*d.Scale) + u*u)
+	return -(d.Nu + 1) * u / (float64(d.Nu*d.Scale*d.Scale) + float64(u*u))
 }
 
 // Score is d log f/dx = −(x − μ)/σ².
@@ -131,11 +131,11 @@ func scalarRowSens(nodes []float64, law conditional, L int, trans []float64, kee
 			// ȧ at fixed λ: the prior's and the moment functions' motion.
 			var ebar float64
 			for j := range z {
-				a := score(z[j]) * dz[j]
+				a := float64(score(z[j]) * dz[j])
 				pow := 1.0
 				for k := 0; k < cols; k++ {
 					a += float64(lam[k] * float64(float64(k+1)*pow) * dz[j])
-					pow *= z[j]
+					pow = float64(pow * z[j])
 				}
 				abar[j] = a
 				ebar += float64(row[j] * a)
@@ -144,11 +144,11 @@ func scalarRowSens(nodes []float64, law conditional, L int, trans []float64, kee
 				// ∂G/∂θ = Σ p_j (ȧ_j − Eȧ) dev_j + Σ p_j ∂dev_j.
 				clear(grad[:cols])
 				for j := range z {
-					w := row[j] * (abar[j] - ebar)
+					w := float64(row[j] * (abar[j] - ebar))
 					pow := 1.0
 					for k := 0; k < cols; k++ {
 						grad[k] += float64(w*dev[j*cols+k]) + float64(row[j]*float64(float64(k+1)*pow)*dz[j])
-						pow *= z[j]
+						pow = float64(pow * z[j])
 					}
 				}
 				cholSolve(chol[:cols*cols], cols, grad[:cols], dlam[:cols])
@@ -173,7 +173,7 @@ func scalarRowSens(nodes []float64, law conditional, L int, trans []float64, kee
 					out[j] = 0
 					continue
 				}
-				out[j] = row[j] * (abar[j] - ebar)
+				out[j] = float64(row[j] * (abar[j] - ebar))
 			}
 		}
 	}
@@ -220,9 +220,9 @@ func regularizeCholesky(h, l []float64, L int) {
 	for r := 0; r < L; r++ {
 		scale = math.Max(scale, h[r*L+r])
 	}
-	for mu := 1e-14; mu < 1; mu *= 10 {
+	for mu := 1e-14; mu < 1; mu = float64(mu * 10) {
 		for r := 0; r < L; r++ {
-			h[r*L+r] += mu * math.Max(scale, 1e-300)
+			h[r*L+r] += float64(mu * math.Max(scale, 1e-300))
 		}
 		if cholesky(h, l, L) {
 			return
@@ -267,7 +267,7 @@ func (p AR1) Sensitivities(s Settings) (*Chain, *Sensitivity, error) {
 	nodes, logW := placeGrid(s.Nodes, n, p.Mean, sdY, s.Width, Normal{p.Mean, sdY})
 	law := conditional{Mean: make([]float64, n), SD: make([]float64, n), Shock: p.Shock}
 	for i, x := range nodes {
-		law.Mean[i] = (1-p.Rho)*p.Mean + p.Rho*x
+		law.Mean[i] = float64((1-p.Rho)*p.Mean) + float64(p.Rho*x)
 		law.SD[i] = p.Sigma
 	}
 	c := &Chain{Dim: 1, Method: MaxEnt, Moments: L, Grid: nodes, Transition: make([]float64, n*n),
@@ -281,7 +281,7 @@ func (p AR1) Sensitivities(s Settings) (*Chain, *Sensitivity, error) {
 	for k := range dNodes {
 		dNodes[k], dMean[k], dSD[k] = make([]float64, n), make([]float64, n), make([]float64, n)
 	}
-	r2 := 1 - p.Rho*p.Rho
+	r2 := 1 - float64(p.Rho*p.Rho)
 	for j, x := range nodes {
 		dNodes[0][j] = 1
 		dNodes[1][j] = (x - p.Mean) * p.Rho / r2
@@ -289,8 +289,8 @@ func (p AR1) Sensitivities(s Settings) (*Chain, *Sensitivity, error) {
 	}
 	for i, x := range nodes {
 		dMean[0][i] = 1
-		dMean[1][i] = x - p.Mean + p.Rho*dNodes[1][i]
-		dMean[2][i] = p.Rho * dNodes[2][i]
+		dMean[1][i] = x - p.Mean + float64(p.Rho*dNodes[1][i])
+		dMean[2][i] = float64(p.Rho * dNodes[2][i])
 		dSD[2][i] = 1
 	}
 	sens := &Sensitivity{Params: []string{"mean", "rho", "sigma"}, Grid: dNodes, Transition: make([][]float64, P)}
@@ -340,8 +340,8 @@ func innovationShapeSens(nodes []float64, law conditional, L int, trans []float6
 		}
 		for j, x := range nodes {
 			z[j] = (x - law.Mean[i]) / law.SD[i]
-			u := sd * z[j]
-			dlogq[j] = prm.dSD/sd + score(u)*z[j]*prm.dSD + prm.dLogPdf(u)
+			u := float64(sd * z[j])
+			dlogq[j] = prm.dSD/sd + float64(score(u)*z[j]*prm.dSD) + prm.dLogPdf(u)
 		}
 		var dReg []float64
 		if keep.regH[i] != nil {

@@ -1,6 +1,10 @@
 package solver
 
-import "math"
+import (
+	"math"
+
+	"gridstage/internal/portablemath"
+)
 
 // The relaxed dual of the smooth matching policy.
 //
@@ -54,7 +58,7 @@ func (w *smoothDual) resize(n, L int) {
 func penalty(lam, b, c []float64) float64 {
 	var s float64
 	for k, l := range lam {
-		s += c[k] * (math.Cosh(l/b[k]) - 1)
+		s += float64(c[k] * (portablemath.Cosh(l/b[k]) - 1))
 	}
 	return s
 }
@@ -106,7 +110,7 @@ func (w *smoothDual) solve(logq, dev []float64, L int, b, c, tol, lam0, p []floa
 		var slope float64
 		for k := range w.step {
 			w.step[k] = -w.step[k]
-			slope += w.grad[k] * w.step[k]
+			slope += float64(w.grad[k] * w.step[k])
 		}
 		quadratic := -slope <= 1e-10*(1+math.Abs(f))
 		var lse float64 = f - penalty(w.lam, b, c)
@@ -117,20 +121,20 @@ func (w *smoothDual) solve(logq, dev []float64, L int, b, c, tol, lam0, p []floa
 				s += float64(w.step[k] * d)
 			}
 			w.shift[j] = s
-			if rise := s - slope; w.a[j]-lse+t*rise > maxLogStep {
+			if rise := s - slope; w.a[j]-lse+float64(t*rise) > maxLogStep {
 				t = (maxLogStep - (w.a[j] - lse)) / rise
 			}
 		}
 		accepted := false
 		for ls := 0; ls < 60; ls++ {
 			for k := range w.lamTry[:L] {
-				w.lamTry[k] = w.lam[k] + t*w.step[k]
+				w.lamTry[k] = w.lam[k] + float64(t*w.step[k])
 			}
 			for j, a := range w.a {
-				w.aTry[j] = a + t*w.shift[j]
+				w.aTry[j] = a + float64(t*w.shift[j])
 			}
 			ft := normalize(w.aTry, w.pTry) + penalty(w.lamTry[:L], b, c)
-			if ft <= f+1e-4*t*slope || (quadratic && !math.IsInf(ft, 1)) {
+			if ft <= f+float64(1e-4*t*slope) || (quadratic && !math.IsInf(ft, 1)) {
 				f = ft
 				w.a, w.aTry = w.aTry, w.a
 				w.p, w.pTry = w.pTry, w.p
@@ -183,8 +187,8 @@ func (w *smoothDual) gradHess(dev []float64, n, L int, b, c []float64) {
 	}
 	for k := 0; k < L; k++ {
 		x := w.lam[k] / b[k]
-		w.grad[k] += c[k] / b[k] * math.Sinh(x)
-		h := c[k] / (b[k] * b[k]) * math.Cosh(x)
+		w.grad[k] += float64(c[k] / b[k] * portablemath.Sinh(x))
+		h := float64(c[k] / (b[k] * b[k]) * portablemath.Cosh(x))
 		w.regH[k] = h
 		w.hess[k*L+k] += h
 	}
@@ -209,9 +213,9 @@ func (w *smoothDual) dampHess(L int) {
 	for r := 0; r < L; r++ {
 		scale = math.Max(scale, w.hess[r*L+r])
 	}
-	for mu := 1e-14; ; mu *= 10 {
+	for mu := 1e-14; ; mu = float64(mu * 10) {
 		for r := 0; r < L; r++ {
-			w.hess[r*L+r] += mu * scale
+			w.hess[r*L+r] += float64(mu * scale)
 		}
 		if cholesky(w.hess, w.chol, L) || mu > 1 {
 			return
@@ -228,9 +232,9 @@ func (w *smoothDual) atFloor(dev []float64, n, L int, b, c []float64) bool {
 		if g <= dualAccept {
 			continue
 		}
-		size := math.Abs(c[k] / b[k] * math.Sinh(w.lam[k]/b[k]))
+		size := math.Abs(float64(c[k] / b[k] * portablemath.Sinh(w.lam[k]/b[k])))
 		for j := 0; j < n; j++ {
-			size += w.p[j] * math.Abs(dev[j*L+k])
+			size += float64(w.p[j] * math.Abs(dev[j*L+k]))
 		}
 		if !(g <= 0x1p-40*size) {
 			return false

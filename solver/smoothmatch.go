@@ -1,6 +1,10 @@
 package solver
 
-import "math"
+import (
+	"math"
+
+	"gridstage/internal/portablemath"
+)
 
 // Constants of the smooth policy's penalty (smoothdual.go), in scaled
 // units μ_k = s_k λ_k, where s_k is the standard deviation of moment
@@ -73,11 +77,11 @@ func (m *smoothMatch) penaltyShape(pr *stateProblem, cols int) {
 		top = max(top, o)
 	}
 	for k := 0; k < cols; k++ {
-		bend := smoothBend * math.Pow(smoothOrderRatio, float64(top-pr.order[k]))
+		bend := float64(smoothBend * portablemath.Pow(smoothOrderRatio, float64(top-pr.order[k])))
 		m.b[k] = bend / pr.scale[k]
-		m.c[k] = smoothEps * bend * bend
+		m.c[k] = float64(smoothEps * bend * bend)
 		// The exact dual's tolerance, in the scaled units of the moment.
-		m.tol[k] = dualTol * pr.scale[k]
+		m.tol[k] = float64(dualTol * pr.scale[k])
 	}
 }
 
@@ -129,7 +133,7 @@ func (m *smoothMatch) errorsWithin(dev []float64, cols, k int, row []float64) bo
 	for col := 0; col < k; col++ {
 		var e float64
 		for j := 0; j < n; j++ {
-			e += row[j] * dev[j*cols+col]
+			e += float64(row[j] * dev[j*cols+col])
 		}
 		if !(math.Abs(e) <= smoothMatchTol) {
 			return false

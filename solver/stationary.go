@@ -86,7 +86,7 @@ func gthReduce(trans []float64, n int) ([]float64, []float64, error) {
 				continue
 			}
 			for j := 0; j < k; j++ {
-				a[i*n+j] += aik * a[k*n+j]
+				a[i*n+j] += float64(aik * a[k*n+j])
 			}
 		}
 	}
@@ -96,7 +96,7 @@ func gthReduce(trans []float64, n int) ([]float64, []float64, error) {
 	for k := 1; k < n; k++ {
 		var s float64
 		for i := 0; i < k; i++ {
-			s += pi[i] * a[i*n+k]
+			s += float64(pi[i] * a[i*n+k])
 		}
 		pi[k] = s
 		total += s

@@ -1,7 +1,5 @@
 package solver
 
-import "gonum.org/v1/gonum/mat"
-
 // stationaryDeriv returns the stationary law π of the n×n chain trans and
 // its derivatives dπ_k = π dP_k (I − P + 1π)⁻¹ along each dTrans[k]
 // (Kemeny and Snell 1960; Schweitzer 1968).
@@ -147,36 +145,31 @@ func gthAbout(trans []float64, n, ref int) ([]float64, []float64, error) {
 // (I − P + 1π)ᵀ, for chains with transient states.
 func stationaryDerivLU(trans, pi []float64, dTrans [][]float64) ([][]float64, error) {
 	n := len(pi)
-	a := mat.NewDense(n, n, nil)
+	a := make([]float64, n*n)
 	for i := 0; i < n; i++ {
 		for j := 0; j < n; j++ {
 			v := pi[j] - trans[i*n+j]
 			if i == j {
 				v++
 			}
-			a.Set(j, i, v) // transposed: solve Aᵀ xᵀ = bᵀ
+			a[j*n+i] = v // transposed: solve Aᵀ xᵀ = bᵀ
 		}
 	}
-	var lu mat.LU
-	lu.Factorize(a)
+	f, err := luFactor(a, n)
+	if err != nil {
+		return nil, err
+	}
 	out := make([][]float64, len(dTrans))
-	b := mat.NewVecDense(n, nil)
+	b := make([]float64, n)
 	for k, dp := range dTrans {
 		for j := 0; j < n; j++ {
 			var s float64
 			for i := 0; i < n; i++ {
 				s += float64(pi[i] * dp[i*n+j])
 			}
-			b.SetVec(j, s)
+			b[j] = s
 		}
-		var x mat.VecDense
-		if err := lu.SolveVecTo(&x, false, b); err != nil {
-			return nil, err
-		}
-		out[k] = make([]float64, n)
-		for j := range out[k] {
-			out[k][j] = x.AtVec(j)
-		}
+		out[k] = f.solve(b)
 	}
 	return out, nil
 }

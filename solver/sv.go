@@ -3,6 +3,8 @@ package solver
 import (
 	"errors"
 	"math"
+
+	"gridstage/internal/portablemath"
 )
 
 // SV is a first-order autoregression with stochastic volatility:
@@ -56,12 +58,12 @@ func prefixParam(err error, prefix string) error {
 // meanExpH returns E e^{kh} under the stationary law of h: exp(k μ_h + k² V_h/2).
 func (p SV) meanExpH(k float64) float64 {
 	v := p.LogVar.StationarySD()
-	return math.Exp(k*p.LogVar.Mean + k*k*v*v/2)
+	return portablemath.Exp(float64(k*p.LogVar.Mean) + k*k*v*v/2)
 }
 
 // LevelSD returns the stationary standard deviation of the level,
 // √(E e^h / (1 − ρ²)).
-func (p SV) LevelSD() float64 { return math.Sqrt(p.meanExpH(1) / (1 - p.Rho*p.Rho)) }
+func (p SV) LevelSD() float64 { return math.Sqrt(p.meanExpH(1) / (1 - float64(p.Rho*p.Rho))) }
 
 // Discretize builds the joint chain on N_y × N_h states: the log-variance
 // is discretized first with vol (any AR(1) method), then in every joint
@@ -107,7 +109,7 @@ func (p SV) Discretize(level, vol Settings) (*Chain, error) {
 		if w == 0 {
 			w = DefaultTauchenWidth
 		}
-		nodes = Trapezoid(ny, p.Mean-w*sdY, p.Mean+w*sdY).Nodes
+		nodes = Trapezoid(ny, p.Mean-float64(w*sdY), p.Mean+float64(w*sdY)).Nodes
 	default:
 		return nil, badChoice("method", level.Method.String(), "maxent or tauchen for the level of a stochastic-volatility process")
 	}
@@ -117,9 +119,9 @@ func (p SV) Discretize(level, vol Settings) (*Chain, error) {
 	levelKL := make([][]float64, nh)
 	for k := 0; k < nh; k++ {
 		law := conditional{Mean: make([]float64, ny), SD: make([]float64, ny)}
-		sd := math.Exp(volChain.Grid[k] / 2)
+		sd := portablemath.Exp(volChain.Grid[k] / 2)
 		for i, y := range nodes {
-			law.Mean[i] = (1-p.Rho)*p.Mean + p.Rho*y
+			law.Mean[i] = float64((1-p.Rho)*p.Mean) + float64(p.Rho*y)
 			law.SD[i] = sd
 		}
 		levelRows[k] = make([]float64, ny*ny)
@@ -159,7 +161,7 @@ func (p SV) Discretize(level, vol Settings) (*Chain, error) {
 			ph := volChain.Row(k)
 			for j, a := range py {
 				for m, b := range ph {
-					row[j*nh+m] = a * b
+					row[j*nh+m] = float64(a * b)
 				}
 			}
 		}
@@ -173,8 +175,8 @@ func (p SV) Discretize(level, vol Settings) (*Chain, error) {
 func (p SV) VectorConditional(x []float64) VectorMoments {
 	h := p.LogVar
 	return VectorMoments{
-		Mean: []float64{(1-p.Rho)*p.Mean + p.Rho*x[0], (1-h.Rho)*h.Mean + h.Rho*x[1]},
-		Cov:  []float64{math.Exp(x[1]), 0, 0, h.Sigma * h.Sigma},
+		Mean: []float64{float64((1-p.Rho)*p.Mean) + float64(p.Rho*x[0]), float64((1-h.Rho)*h.Mean) + float64(h.Rho*x[1])},
+		Cov:  []float64{portablemath.Exp(x[1]), 0, 0, float64(h.Sigma * h.Sigma)},
 		Skew: []float64{0, 0}, Kurt: []float64{3, 3},
 	}
 }
@@ -184,18 +186,18 @@ func (p SV) VectorConditional(x []float64) VectorMoments {
 // uncorrelated with h because ε is independent of h), and autocovariance
 // diag(ρ Var y, ρ_h Var h).
 func (p SV) VectorUnconditional() VectorSummary {
-	vy := p.LevelSD() * p.LevelSD()
-	vh := p.LogVar.StationarySD() * p.LogVar.StationarySD()
+	vy := float64(p.LevelSD() * p.LevelSD())
+	vh := float64(p.LogVar.StationarySD() * p.LogVar.StationarySD())
 	return VectorSummary{
 		Mean:    []float64{p.Mean, p.LogVar.Mean},
 		Cov:     []float64{vy, 0, 0, vh},
-		Autocov: []float64{p.Rho * vy, 0, 0, p.LogVar.Rho * vh},
+		Autocov: []float64{float64(p.Rho * vy), 0, 0, float64(p.LogVar.Rho * vh)},
 	}
 }
 
 // Conditional returns the level's conditional moments given x = (y, h).
 func (p SV) Conditional(x []float64) Moments {
-	return Moments{Mean: (1-p.Rho)*p.Mean + p.Rho*x[0], Var: math.Exp(x[1]), Skew: 0, Kurt: 3}
+	return Moments{Mean: float64((1-p.Rho)*p.Mean) + float64(p.Rho*x[0]), Var: portablemath.Exp(x[1]), Skew: 0, Kurt: 3}
 }
 
 // Unconditional returns the level's stationary moments. Its kurtosis is
@@ -206,22 +208,22 @@ func (p SV) Conditional(x []float64) Moments {
 // which follows from writing y − μ = Σ_k ρ^k e^{h_{t−1−k}/2} ε_{t−k} and
 // taking expectations (the series is summed to double precision).
 func (p SV) Unconditional() Summary {
-	vh := p.LogVar.StationarySD() * p.LogVar.StationarySD()
+	vh := float64(p.LogVar.StationarySD() * p.LogVar.StationarySD())
 	g := func(m int) float64 {
-		return math.Exp(2*p.LogVar.Mean + vh*(1+math.Pow(p.LogVar.Rho, float64(m))))
+		return portablemath.Exp(float64(2*p.LogVar.Mean) + float64(vh*(1+portablemath.Pow(p.LogVar.Rho, float64(m)))))
 	}
-	r2 := p.Rho * p.Rho
+	r2 := float64(p.Rho * p.Rho)
 	sum := g(0)
 	pow := 1.0
 	for m := 1; m < 10_000_000; m++ {
-		pow *= r2
-		t := 2 * pow * g(m)
+		pow = float64(pow * r2)
+		t := float64(2 * pow * g(m))
 		sum += t
 		if t <= 1e-17*sum {
 			break
 		}
 	}
-	m4 := 3 / (1 - r2*r2) * sum
-	v := p.LevelSD() * p.LevelSD()
+	m4 := float64(3 / (1 - float64(r2*r2)) * sum)
+	v := float64(p.LevelSD() * p.LevelSD())
 	return Summary{Mean: p.Mean, SD: math.Sqrt(v), Skew: 0, Kurt: m4 / (v * v), Autocorr: p.Rho}
 }

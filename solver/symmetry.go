@@ -64,16 +64,16 @@ func scalarMirror(nodes, logW []float64, law conditional) bool {
 	}
 	span := nodes[n-1] - nodes[0]
 	c := (nodes[0] + nodes[n-1]) / 2
-	tol := symTol * (span + math.Abs(c))
+	tol := float64(symTol * (span + math.Abs(c)))
 	for j := 0; j < n/2; j++ {
-		if math.Abs(nodes[j]+nodes[n-1-j]-2*c) > tol ||
+		if math.Abs(nodes[j]+nodes[n-1-j]-float64(2*c)) > tol ||
 			math.Abs(logW[j]-logW[n-1-j]) > symTol*(1+math.Abs(logW[j])) {
 			return false
 		}
 	}
 	for i := 0; i < (m+1)/2; i++ {
 		k := m - 1 - i
-		if math.Abs(law.Mean[i]+law.Mean[k]-2*c) > tol || math.Abs(law.SD[i]-law.SD[k]) > symTol*law.SD[i] {
+		if math.Abs(law.Mean[i]+law.Mean[k]-float64(2*c)) > tol || math.Abs(law.SD[i]-law.SD[k]) > symTol*law.SD[i] {
 			return false
 		}
 	}

@@ -1,6 +1,10 @@
 package solver
 
-import "math"
+import (
+	"math"
+
+	"gridstage/internal/portablemath"
+)
 
 // DefaultTauchenWidth is the half-width of Tauchen's grid in unconditional
 // standard deviations when none is given (m = 3, common practice).
@@ -13,14 +17,14 @@ func tauchenRows(nodes []float64, h float64, law conditional, trans []float64) {
 	n := len(nodes)
 	cdf := func(z float64) float64 {
 		if law.Shock == nil {
-			return 0.5 * math.Erfc(-z/math.Sqrt2)
+			return float64(0.5 * portablemath.Erfc(-z/math.Sqrt2))
 		}
 		return law.Shock.CDF(z)
 	}
 	// survival 1 − F(z), accurate in the upper tail for the normal.
 	sf := func(z float64) float64 {
 		if law.Shock == nil {
-			return 0.5 * math.Erfc(z/math.Sqrt2)
+			return float64(0.5 * portablemath.Erfc(z/math.Sqrt2))
 		}
 		return 1 - law.Shock.CDF(z)
 	}

@@ -1,6 +1,6 @@
 package solver
 
-import "math"
+import "gridstage/internal/portablemath"
 
 // FlodenWeight is the weight Flodén (2008) puts on the innovation s.d. in
 // the base s.d. of Tauchen-Hussey quadrature: σ_b = w σ_ε + (1−w) σ_y with
@@ -22,12 +22,12 @@ func tauchenHusseyRows(nodes, logOmega []float64, mu, sdBase float64, law condit
 			z := (x - m) / s
 			var lf float64
 			if law.Shock == nil {
-				lf = -0.5 * z * z
+				lf = float64(-0.5 * z * z)
 			} else {
 				lf = law.Shock.LogProb(z)
 			}
 			zb := (x - mu) / sdBase
-			logq[j] = logOmega[j] + lf - math.Log(s) + 0.5*zb*zb + math.Log(sdBase)
+			logq[j] = logOmega[j] + lf - portablemath.Log(s) + float64(0.5*zb*zb) + portablemath.Log(sdBase)
 		}
 		priorRow(logq, trans[i*n:(i+1)*n])
 	}

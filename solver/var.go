@@ -6,6 +6,7 @@ import (
 	"strconv"
 
 	"gonum.org/v1/gonum/mat"
+	"gridstage/internal/portablemath"
 )
 
 // MaxVARDim is the largest VAR dimension Discretize accepts.
@@ -89,11 +90,8 @@ func spectralRadius(b []float64, d int) float64 {
 
 // minEigenSym returns the smallest eigenvalue of the symmetric matrix s.
 func minEigenSym(s []float64, d int) float64 {
-	var eig mat.EigenSym
-	if !eig.Factorize(mat.NewSymDense(d, append([]float64(nil), s...)), false) {
-		return math.NaN()
-	}
-	return eig.Values(nil)[0]
+	vals, _ := symEigen(s, d)
+	return vals[0]
 }
 
 // StationaryMean returns μ = (I − B)⁻¹ c. It assumes p is valid.
@@ -103,20 +101,19 @@ func (p VAR) StationaryMean() []float64 {
 	if p.Intercept == nil {
 		return mu
 	}
-	a := mat.NewDense(d, d, nil)
+	a := make([]float64, d*d)
 	for k := 0; k < d; k++ {
 		for l := 0; l < d; l++ {
-			a.Set(k, l, -p.Coef[k*d+l])
+			a[k*d+l] = -p.Coef[k*d+l]
 		}
-		a.Set(k, k, a.At(k, k)+1)
+		a[k*d+k]++
 	}
-	var x mat.VecDense
 	// I − B is nonsingular when the spectral radius of B is below one.
-	_ = x.SolveVec(a, mat.NewVecDense(d, append([]float64(nil), p.Intercept...)))
-	for k := range mu {
-		mu[k] = x.AtVec(k)
+	f, err := luFactor(a, d)
+	if err != nil {
+		return mu
 	}
-	return mu
+	return f.solve(p.Intercept)
 }
 
 // StationaryCov returns Σ solving Σ = B Σ Bᵀ + Ψ (row-major d×d). It
@@ -138,7 +135,7 @@ func (p VAR) ConditionalMean(x, dst []float64) []float64 {
 			s = p.Intercept[k]
 		}
 		for l := 0; l < d; l++ {
-			s += p.Coef[k*d+l] * x[l]
+			s += float64(p.Coef[k*d+l] * x[l])
 		}
 		dst[k] = s
 	}
@@ -176,7 +173,7 @@ func checkTensorStates(n, d int) error {
 	for k := 0; k < d; k++ {
 		total *= n
 		if total > maxVectorStates {
-			return badParam("states", float64(n), "at most "+strconv.Itoa(int(math.Floor(math.Pow(maxVectorStates, 1/float64(d))+1e-9)))+" per axis in dimension "+strconv.Itoa(d)+" (at most "+strconv.Itoa(MaxStates)+" states in all)")
+			return badParam("states", float64(n), "at most "+strconv.Itoa(int(math.Floor(portablemath.Pow(maxVectorStates, 1/float64(d))+1e-9)))+" per axis in dimension "+strconv.Itoa(d)+" (at most "+strconv.Itoa(MaxStates)+" states in all)")
 		}
 	}
 	return nil

@@ -3,8 +3,6 @@ package solver
 import (
 	"fmt"
 	"math"
-
-	"gonum.org/v1/gonum/mat"
 )
 
 // Axes names the orientation of a tensor grid for a vector process (the
@@ -56,24 +54,18 @@ func axisFrame(axes Axes, sigma []float64, d int) []float64 {
 			a[k*d+k] = math.Sqrt(sigma[k*d+k])
 		}
 	case AxesPrincipal:
-		var eig mat.EigenSym
-		if !eig.Factorize(mat.NewSymDense(d, append([]float64(nil), sigma...)), true) {
-			panic("solver: eigen-decomposition of the stationary covariance failed")
-		}
-		vals := eig.Values(nil) // ascending
-		var vecs mat.Dense
-		eig.VectorsTo(&vecs)
+		vals, vecs := symEigen(sigma, d) // ascending
 		for col := 0; col < d; col++ {
 			src := d - 1 - col // decreasing eigenvalue
 			big, sign := 0.0, 1.0
 			for r := 0; r < d; r++ {
-				if v := vecs.At(r, src); math.Abs(v) > big+1e-12 {
+				if v := vecs[r*d+src]; math.Abs(v) > big+1e-12 {
 					big, sign = math.Abs(v), math.Copysign(1, v)
 				}
 			}
-			scale := sign * math.Sqrt(math.Max(vals[src], 0))
+			scale := float64(sign * math.Sqrt(math.Max(vals[src], 0)))
 			for r := 0; r < d; r++ {
-				a[r*d+col] = scale * vecs.At(r, src)
+				a[r*d+col] = float64(scale * vecs[r*d+src])
 			}
 		}
 	default:
@@ -107,7 +99,7 @@ func tensorGrid(mu, frame []float64, d int, nodes, logW []float64) (grid, logWei
 			a := nodes[idx[k]]
 			lw += logW[idx[k]]
 			for r := 0; r < d; r++ {
-				x[r] += frame[r*d+k] * a
+				x[r] += float64(frame[r*d+k] * a)
 			}
 		}
 		logWeights[s] = lw

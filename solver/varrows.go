@@ -194,10 +194,10 @@ func (law gaussianVectorLaw) fillState(i int, grid, logW []float64, L int, logq,
 		for r := 0; r < d; r++ { // forward substitution L z = e
 			s := e[r]
 			for c := 0; c < r; c++ {
-				s -= law.chol[r*d+c] * z[c]
+				s -= float64(law.chol[r*d+c] * z[c])
 			}
 			z[r] = s / law.chol[r*d+r]
-			q += z[r] * z[r]
+			q += float64(z[r] * z[r])
 		}
 		logq[j] = logW[j] - q/2
 		row := allDev[j*full : (j+1)*full]
@@ -205,7 +205,7 @@ func (law gaussianVectorLaw) fillState(i int, grid, logW []float64, L int, logq,
 		if L >= 2 {
 			for k := 0; k < d; k++ {
 				for l := k; l < d; l++ {
-					v := z[k] * z[l]
+					v := float64(z[k] * z[l])
 					if k == l {
 						v--
 					}
@@ -217,15 +217,15 @@ func (law gaussianVectorLaw) fillState(i int, grid, logW []float64, L int, logq,
 		if L >= 3 {
 			for k := 0; k < d; k++ {
 				u := e[k] / law.sd[k]
-				row[col] = u * u * u
+				row[col] = float64(u * u * u)
 				col++
 			}
 		}
 		if L >= 4 {
 			for k := 0; k < d; k++ {
 				u := e[k] / law.sd[k]
-				u *= u
-				row[col] = u*u - 3
+				u = float64(u * u)
+				row[col] = float64(u*u) - 3
 				col++
 			}
 		}
@@ -245,14 +245,14 @@ func vectorMirror(grid, logW, means []float64, d int) bool {
 		c[k] = (grid[k] + grid[(n-1)*d+k]) / 2
 		span = math.Max(span, math.Abs(grid[k]-grid[(n-1)*d+k])+math.Abs(c[k]))
 	}
-	tol := symTol * span
+	tol := float64(symTol * span)
 	for i := 0; i < n/2+1; i++ {
 		m := n - 1 - i
 		if math.Abs(logW[i]-logW[m]) > symTol*(1+math.Abs(logW[i])) {
 			return false
 		}
 		for k := 0; k < d; k++ {
-			if math.Abs(grid[i*d+k]+grid[m*d+k]-2*c[k]) > tol || math.Abs(means[i*d+k]+means[m*d+k]-2*c[k]) > tol {
+			if math.Abs(grid[i*d+k]+grid[m*d+k]-float64(2*c[k])) > tol || math.Abs(means[i*d+k]+means[m*d+k]-float64(2*c[k])) > tol {
 				return false
 			}
 		}

@@ -4,8 +4,6 @@ import (
 	"errors"
 	"fmt"
 	"math"
-
-	"gonum.org/v1/gonum/mat"
 )
 
 // ErrNotDifferentiable reports a chain at parameters where it has no
@@ -113,22 +111,18 @@ type varDirection struct{ intercept, coef, cov int }
 
 // axisCoordinates returns a_j with x_j = μ + A a_j for every grid point.
 func axisCoordinates(grid, mu, frame []float64, d int) []float64 {
-	var lu mat.LU
-	lu.Factorize(mat.NewDense(d, d, append([]float64(nil), frame...)))
+	f, err := luFactor(frame, d)
+	if err != nil {
+		panic("solver: singular grid frame")
+	}
 	n := len(grid) / d
 	out := make([]float64, n*d)
-	b := mat.NewVecDense(d, nil)
-	var x mat.VecDense
+	b := make([]float64, d)
 	for j := 0; j < n; j++ {
 		for k := 0; k < d; k++ {
-			b.SetVec(k, grid[j*d+k]-mu[k])
+			b[k] = grid[j*d+k] - mu[k]
 		}
-		if err := lu.SolveVecTo(&x, false, b); err != nil && !errors.As(err, new(mat.Condition)) {
-			panic("solver: singular grid frame")
-		}
-		for k := 0; k < d; k++ {
-			out[j*d+k] = x.AtVec(k)
-		}
+		copy(out[j*d:(j+1)*d], f.solve(b))
 	}
 	return out
 }
@@ -148,20 +142,21 @@ func (p VAR) motion(axes Axes, dir varDirection, mu, sigma, frame, coords, grid 
 		dPsi[r*d+col], dPsi[col*d+r] = 1, 1
 	}
 	// dμ = (I − B)⁻¹ (dc + dB μ).
-	a := mat.NewDense(d, d, nil)
-	rhs := mat.NewVecDense(d, nil)
+	a := make([]float64, d*d)
+	rhs := make([]float64, d)
 	for k := 0; k < d; k++ {
 		for l := 0; l < d; l++ {
-			a.Set(k, l, -B[k*d+l])
-			rhs.SetVec(k, rhs.AtVec(k)+dB[k*d+l]*mu[l])
+			a[k*d+l] = -B[k*d+l]
+			rhs[k] += float64(dB[k*d+l] * mu[l])
 		}
-		a.Set(k, k, a.At(k, k)+1)
-		rhs.SetVec(k, rhs.AtVec(k)+dc[k])
+		a[k*d+k]++
+		rhs[k] += dc[k]
 	}
-	var dmuV mat.VecDense
-	if err := dmuV.SolveVec(a, rhs); err != nil && !errors.As(err, new(mat.Condition)) {
+	fa, err := luFactor(a, d)
+	if err != nil {
 		return varMotion{}, err
 	}
+	dmuV := fa.solve(rhs)
 	// dΣ = B dΣ Bᵀ + (dB Σ Bᵀ + B Σ dBᵀ + dΨ).
 	q := make([]float64, d*d)
 	for i := 0; i < d; i++ {
@@ -169,7 +164,7 @@ func (p VAR) motion(axes Axes, dir varDirection, mu, sigma, frame, coords, grid 
 			v := dPsi[i*d+j]
 			for k := 0; k < d; k++ {
 				for l := 0; l < d; l++ {
-					v += dB[i*d+k]*sigma[k*d+l]*B[j*d+l] + B[i*d+k]*sigma[k*d+l]*dB[j*d+l]
+					v += float64(dB[i*d+k]*sigma[k*d+l]*B[j*d+l]) + float64(B[i*d+k]*sigma[k*d+l]*dB[j*d+l])
 				}
 			}
 			q[i*d+j] = v
@@ -187,9 +182,9 @@ func (p VAR) motion(axes Axes, dir varDirection, mu, sigma, frame, coords, grid 
 	mo := varMotion{grid: make([]float64, n*d), means: make([]float64, n*d), chol: make([]float64, d*d), sd: make([]float64, d)}
 	for j := 0; j < n; j++ {
 		for r := 0; r < d; r++ {
-			v := dmuV.AtVec(r)
+			v := dmuV[r]
 			for k := 0; k < d; k++ {
-				v += dFrame[r*d+k] * coords[j*d+k]
+				v += float64(dFrame[r*d+k] * coords[j*d+k])
 			}
 			mo.grid[j*d+r] = v
 		}
@@ -199,7 +194,7 @@ func (p VAR) motion(axes Axes, dir varDirection, mu, sigma, frame, coords, grid 
 		for r := 0; r < d; r++ {
 			v := dc[r]
 			for k := 0; k < d; k++ {
-				v += dB[r*d+k]*grid[i*d+k] + B[r*d+k]*mo.grid[i*d+k]
+				v += float64(dB[r*d+k]*grid[i*d+k]) + float64(B[r*d+k]*mo.grid[i*d+k])
 			}
 			mo.means[i*d+r] = v
 		}
@@ -211,7 +206,7 @@ func (p VAR) motion(axes Axes, dir varDirection, mu, sigma, frame, coords, grid 
 		for r := 0; r < d; r++ {
 			v := dPsi[r*d+col]
 			for k := 0; k < r; k++ {
-				v -= Lc[r*d+k] * x[k*d+col]
+				v -= float64(Lc[r*d+k] * x[k*d+col])
 			}
 			x[r*d+col] = v / Lc[r*d+r]
 		}
@@ -221,7 +216,7 @@ func (p VAR) motion(axes Axes, dir varDirection, mu, sigma, frame, coords, grid 
 		for col := 0; col < d; col++ {
 			v := x[r*d+col]
 			for k := 0; k < col; k++ {
-				v -= Lc[col*d+k] * y[r*d+k]
+				v -= float64(Lc[col*d+k] * y[r*d+k])
 			}
 			y[r*d+col] = v / Lc[col*d+col]
 		}
@@ -234,7 +229,7 @@ func (p VAR) motion(axes Axes, dir varDirection, mu, sigma, frame, coords, grid 
 				if k == col {
 					phi /= 2
 				}
-				v += Lc[r*d+k] * phi
+				v += float64(Lc[r*d+k] * phi)
 			}
 			mo.chol[r*d+col] = v
 		}
@@ -261,7 +256,7 @@ func frameMotion(axes Axes, sigma, dSigma, frame []float64, d int) ([]float64, e
 	for k := 0; k < d; k++ {
 		var s float64
 		for r := 0; r < d; r++ {
-			s += frame[r*d+k] * frame[r*d+k]
+			s += float64(frame[r*d+k] * frame[r*d+k])
 		}
 		lam[k] = s
 		for r := 0; r < d; r++ {
@@ -272,7 +267,7 @@ func frameMotion(axes Axes, sigma, dSigma, frame []float64, d int) ([]float64, e
 		var s float64
 		for r := 0; r < d; r++ {
 			for c := 0; c < d; c++ {
-				s += v[r*d+a] * dSigma[r*d+c] * v[c*d+b]
+				s += float64(v[r*d+a] * dSigma[r*d+c] * v[c*d+b])
 			}
 		}
 		return s
@@ -281,7 +276,7 @@ func frameMotion(axes Axes, sigma, dSigma, frame []float64, d int) ([]float64, e
 		dl := quad(k, k)
 		root := math.Sqrt(lam[k])
 		for r := 0; r < d; r++ {
-			dA[r*d+k] = dl / (2 * root) * v[r*d+k]
+			dA[r*d+k] = float64(dl / (2 * root) * v[r*d+k])
 		}
 		for l := 0; l < d; l++ {
 			if l == k {
@@ -293,7 +288,7 @@ func frameMotion(axes Axes, sigma, dSigma, frame []float64, d int) ([]float64, e
 			}
 			w := quad(l, k) / gap
 			for r := 0; r < d; r++ {
-				dA[r*d+k] += root * w * v[r*d+l]
+				dA[r*d+k] += float64(root * w * v[r*d+l])
 			}
 		}
 	}
@@ -332,7 +327,7 @@ func vectorRowSens(grid, logW []float64, law gaussianVectorLaw, L int, trans []f
 			for r := 0; r < d; r++ { // L z = e and L dz = de − dL z
 				s := e[r]
 				for c := 0; c < r; c++ {
-					s -= law.chol[r*d+c] * z[c]
+					s -= float64(law.chol[r*d+c] * z[c])
 				}
 				z[r] = s / law.chol[r*d+r]
 			}
@@ -340,13 +335,13 @@ func vectorRowSens(grid, logW []float64, law gaussianVectorLaw, L int, trans []f
 			for r := 0; r < d; r++ {
 				s := de[r]
 				for c := 0; c <= r; c++ {
-					s -= mo.chol[r*d+c] * z[c]
+					s -= float64(mo.chol[r*d+c] * z[c])
 				}
 				for c := 0; c < r; c++ {
-					s -= law.chol[r*d+c] * dz[c]
+					s -= float64(law.chol[r*d+c] * dz[c])
 				}
 				dz[r] = s / law.chol[r*d+r]
-				dq += z[r] * dz[r]
+				dq += float64(z[r] * dz[r])
 			}
 			dlogq[j] = -dq
 			for k := 0; k < d; k++ {
@@ -358,7 +353,7 @@ func vectorRowSens(grid, logW []float64, law gaussianVectorLaw, L int, trans []f
 			if L >= 2 {
 				for k := 0; k < d; k++ {
 					for l := k; l < d; l++ {
-						row[col] = dz[k]*z[l] + z[k]*dz[l]
+						row[col] = float64(dz[k]*z[l]) + float64(z[k]*dz[l])
 						col++
 					}
 				}
@@ -366,14 +361,14 @@ func vectorRowSens(grid, logW []float64, law gaussianVectorLaw, L int, trans []f
 			if L >= 3 {
 				for k := 0; k < d; k++ {
 					u := e[k] / law.sd[k]
-					row[col] = 3 * u * u * du[k]
+					row[col] = float64(3 * u * u * du[k])
 					col++
 				}
 			}
 			if L >= 4 {
 				for k := 0; k < d; k++ {
 					u := e[k] / law.sd[k]
-					row[col] = 4 * u * u * u * du[k]
+					row[col] = float64(4 * u * u * u * du[k])
 					col++
 				}
 			}
@@ -406,7 +401,7 @@ func vectorRowSens(grid, logW []float64, law gaussianVectorLaw, L int, trans []f
 			}
 			clear(grad[:cols])
 			for j := 0; j < n; j++ {
-				w := p[j] * (abar[j] - ebar)
+				w := float64(p[j] * (abar[j] - ebar))
 				for k := 0; k < cols; k++ {
 					grad[k] += float64(w*dev[j*cols+k]) + float64(p[j]*dDev[j*full+k])
 				}
@@ -428,7 +423,7 @@ func vectorRowSens(grid, logW []float64, law gaussianVectorLaw, L int, trans []f
 				out[j] = 0
 				continue
 			}
-			out[j] = p[j] * (abar[j] - ebar)
+			out[j] = float64(p[j] * (abar[j] - ebar))
 		}
 	}
 	for i := 0; i < n; i++ {

@@ -1,6 +1,10 @@
 package solver
 
-import "math"
+import (
+	"math"
+
+	"gridstage/internal/portablemath"
+)
 
 // tauchen builds Tauchen's (1986) chain for the VAR. Tauchen writes the VAR
 // with independent innovations, which any VAR can be brought to by a linear
@@ -44,7 +48,7 @@ func (p VAR) tauchen(s Settings) *Chain {
 	axisNodes := make([][]float64, d)
 	h := make([]float64, d)
 	for k := 0; k < d; k++ {
-		r := Trapezoid(N, muY[k]-width*sdY[k], muY[k]+width*sdY[k])
+		r := Trapezoid(N, muY[k]-float64(width*sdY[k]), muY[k]+float64(width*sdY[k]))
 		axisNodes[k], h[k] = r.Nodes, r.Nodes[1]-r.Nodes[0]
 	}
 	total := 1
@@ -71,7 +75,7 @@ func (p VAR) tauchen(s Settings) *Chain {
 		for r := 0; r < d; r++ {
 			var v float64
 			for k := 0; k <= r; k++ {
-				v += chol[r*d+k] * y[k]
+				v += float64(chol[r*d+k] * y[k])
 			}
 			x[r] = v
 		}
@@ -90,7 +94,7 @@ func (p VAR) tauchen(s Settings) *Chain {
 		for j := range row {
 			rem, prob := j, 1.0
 			for k := d - 1; k >= 0; k-- {
-				prob *= masses[k][rem%N]
+				prob = float64(prob * masses[k][rem%N])
 				rem /= N
 			}
 			row[j] = prob
@@ -115,9 +119,9 @@ func intervalMasses(nodes []float64, h, mean float64, out []float64) {
 		}
 		// Survival differences keep precision in the upper tail.
 		if lo > 0 {
-			out[j] = 0.5 * (math.Erfc(lo/math.Sqrt2) - math.Erfc(hi/math.Sqrt2))
+			out[j] = float64(0.5 * (portablemath.Erfc(lo/math.Sqrt2) - portablemath.Erfc(hi/math.Sqrt2)))
 		} else {
-			out[j] = 0.5 * (math.Erfc(-hi/math.Sqrt2) - math.Erfc(-lo/math.Sqrt2))
+			out[j] = float64(0.5 * (portablemath.Erfc(-hi/math.Sqrt2) - portablemath.Erfc(-lo/math.Sqrt2)))
 		}
 	}
 }
@@ -128,7 +132,7 @@ func lowerSolve(l []float64, d int, b []float64) []float64 {
 	for r := 0; r < d; r++ {
 		s := b[r]
 		for c := 0; c < r; c++ {
-			s -= l[r*d+c] * x[c]
+			s -= float64(l[r*d+c] * x[c])
 		}
 		x[r] = s / l[r*d+r]
 	}

@@ -1,6 +1,10 @@
 package solver
 
-import "math"
+import (
+	"math"
+
+	"gridstage/internal/portablemath"
+)
 
 // VectorStateCheck compares a chain's conditional moments in one state with
 // the truth, in standardized units: with L the Cholesky factor of the true
@@ -120,7 +124,7 @@ func DiagnoseVector(c *Chain, truth VectorTruth) VectorDiagnostics {
 		out.StationaryMeanErr = math.Max(out.StationaryMeanErr,
 			math.Abs(out.Chain.Mean[k]-out.True.Mean[k])/math.Sqrt(out.True.Cov[k*d+k]))
 		for l := 0; l < d; l++ {
-			e := math.Abs(out.Chain.Cov[k*d+l]-out.True.Cov[k*d+l]) / math.Sqrt(out.True.Cov[k*d+k]*out.True.Cov[l*d+l])
+			e := math.Abs(out.Chain.Cov[k*d+l]-out.True.Cov[k*d+l]) / math.Sqrt(float64(out.True.Cov[k*d+k]*out.True.Cov[l*d+l]))
 			out.StationaryCovErr = math.Max(out.StationaryCovErr, e)
 			out.AutocorrErr = math.Max(out.AutocorrErr, math.Abs(out.ChainAutocorr[k*d+l]-out.TrueAutocorr[k*d+l]))
 		}
@@ -138,7 +142,7 @@ func ChainMoments(c *Chain, pi []float64) VectorSummary {
 	for i := 0; i < n; i++ {
 		x := c.State(i)
 		for k := 0; k < d; k++ {
-			s.Mean[k] += pi[i] * x[k]
+			s.Mean[k] += float64(pi[i] * x[k])
 		}
 	}
 	next := make([]float64, d)
@@ -147,14 +151,14 @@ func ChainMoments(c *Chain, pi []float64) VectorSummary {
 		clear(next)
 		for j, p := range c.Row(i) {
 			for k, v := range c.State(j) {
-				next[k] += p * v
+				next[k] += float64(p * v)
 			}
 		}
 		for k := 0; k < d; k++ {
 			dk := x[k] - s.Mean[k]
 			for l := 0; l < d; l++ {
-				s.Cov[k*d+l] += pi[i] * dk * (x[l] - s.Mean[l])
-				s.Autocov[k*d+l] += pi[i] * (next[k] - s.Mean[k]) * (x[l] - s.Mean[l])
+				s.Cov[k*d+l] += float64(pi[i] * dk * (x[l] - s.Mean[l]))
+				s.Autocov[k*d+l] += float64(pi[i] * (next[k] - s.Mean[k]) * (x[l] - s.Mean[l]))
 			}
 		}
 	}
@@ -166,7 +170,7 @@ func autocorrelation(s VectorSummary, d int) []float64 {
 	r := make([]float64, d*d)
 	for k := 0; k < d; k++ {
 		for l := 0; l < d; l++ {
-			r[k*d+l] = s.Autocov[k*d+l] / math.Sqrt(s.Cov[k*d+k]*s.Cov[l*d+l])
+			r[k*d+l] = s.Autocov[k*d+l] / math.Sqrt(float64(s.Cov[k*d+k]*s.Cov[l*d+l]))
 		}
 	}
 	return r
@@ -179,7 +183,7 @@ func rowMoments(c *Chain, row []float64) VectorMoments {
 	m := VectorMoments{Mean: make([]float64, d), Cov: make([]float64, d*d), Skew: make([]float64, d), Kurt: make([]float64, d)}
 	for j, p := range row {
 		for k, v := range c.State(j) {
-			m.Mean[k] += p * v
+			m.Mean[k] += float64(p * v)
 		}
 	}
 	m3, m4 := make([]float64, d), make([]float64, d)
@@ -188,15 +192,15 @@ func rowMoments(c *Chain, row []float64) VectorMoments {
 		for k := 0; k < d; k++ {
 			dk := x[k] - m.Mean[k]
 			for l := 0; l < d; l++ {
-				m.Cov[k*d+l] += p * dk * (x[l] - m.Mean[l])
+				m.Cov[k*d+l] += float64(p * dk * (x[l] - m.Mean[l]))
 			}
-			m3[k] += p * dk * dk * dk
-			m4[k] += p * dk * dk * dk * dk
+			m3[k] += float64(p * dk * dk * dk)
+			m4[k] += float64(p * dk * dk * dk * dk)
 		}
 	}
 	for k := 0; k < d; k++ {
 		v := m.Cov[k*d+k]
-		m.Skew[k] = m3[k] / math.Pow(v, 1.5)
+		m.Skew[k] = m3[k] / portablemath.Pow(v, 1.5)
 		m.Kurt[k] = m4[k] / (v * v)
 	}
 	return m

@@ -81,7 +81,7 @@ func matMul(a, b []float64, d int, out []float64) {
 		for c := 0; c < d; c++ {
 			var s float64
 			for k := 0; k < d; k++ {
-				s += a[r*d+k] * b[k*d+c]
+				s += float64(a[r*d+k] * b[k*d+c])
 			}
 			out[r*d+c] = s
 		}
@@ -103,8 +103,8 @@ func (s scalarTruth) VectorConditional(x []float64) VectorMoments {
 
 func (s scalarTruth) VectorUnconditional() VectorSummary {
 	u := s.Unconditional()
-	v := u.SD * u.SD
-	return VectorSummary{Mean: []float64{u.Mean}, Cov: []float64{v}, Autocov: []float64{u.Autocorr * v}}
+	v := float64(u.SD * u.SD)
+	return VectorSummary{Mean: []float64{u.Mean}, Cov: []float64{v}, Autocov: []float64{float64(u.Autocorr * v)}}
 }
 
 // Independent is the truth of a product of independent components (see
