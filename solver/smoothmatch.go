@@ -72,9 +72,13 @@ func (m *smoothMatch) penaltyShape(pr *stateProblem, cols int) {
 	for _, o := range pr.order[:cols] {
 		top = max(top, o)
 	}
+	scale := pr.scale
+	if pr.penaltyScale != nil {
+		scale = pr.penaltyScale
+	}
 	for k := 0; k < cols; k++ {
 		bend := smoothBend * math.Pow(smoothOrderRatio, float64(top-pr.order[k]))
-		m.b[k] = bend / pr.scale[k]
+		m.b[k] = bend / scale[k]
 		m.c[k] = smoothEps * bend * bend
 		// The exact dual's tolerance, in the scaled units of the moment.
 		m.tol[k] = dualTol * pr.scale[k]
