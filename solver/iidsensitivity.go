@@ -135,7 +135,8 @@ func lawMotion(dist Distribution) ([]lawParam, func(x float64) float64, error) {
 // described at Sensitivity. The points move with the law's mean and
 // standard deviation (and, for a log-normal on Gauss-Hermite nodes in
 // logs, with μ and σ of the logs); the prior moves with the log density,
-// the targets with the standardized moments. The stationary law of an
+// the targets with the standardized moments (the smooth policy's penalty
+// does not: its scales are the normal law's). The stationary law of an
 // i.i.d. chain is its row, so its derivative is the weights'. It returns
 // an error wrapping ErrNoSensitivities for other laws (beta, mixture), and
 // for shape parameters on equal-mass nodes (quantiles of the law itself).
@@ -237,12 +238,8 @@ func (p IID) Sensitivities(s Settings) (*Chain, *Sensitivity, error) {
 		if len(keep.lam) > 0 {
 			lam, regH = keep.lam[0], keep.regH[0]
 		}
-		var dReg []float64
-		if regH != nil && prm.shape {
-			dReg = penaltyMotion(shock, lam, prm.dStd)
-		}
 		dRow := make([]float64, n)
-		genericRowSens(row, lam, regH, dReg, z, targets, dev, dlogq, dDev, L, dRow)
+		genericRowSens(row, lam, regH, z, targets, dev, dlogq, dDev, L, dRow)
 		dTrans := make([]float64, n*n)
 		for i := 0; i < n; i++ {
 			copy(dTrans[i*n:(i+1)*n], dRow)
@@ -293,41 +290,14 @@ func iidLogWeights(p IID, s Settings, nodes []float64) []float64 {
 	return logW
 }
 
-// penaltyMotion returns, for the smooth policy (smoothMatch.penaltyShape),
-// the motion of the penalty's gradient r'_k(λ_k) = (c_k/b_k) sinh(λ_k/b_k)
-// when a shape parameter moves the scales s_k = √(m_2k − m_k²) of the
-// standardized moment functions, and with them b_k = bend_k/s_k: the
-// dual's optimality condition then moves by ∂r'_k/∂b_k · db_k. A scale
-// that falls back to the normal law's (a moment the law lacks) does not
-// move.
-func penaltyMotion(shock Distribution, lam []float64, dStd func(k int) float64) []float64 {
-	cols := len(lam)
-	scale := shockScales(shock, cols)
-	out := make([]float64, cols)
-	for k := 1; k <= cols; k++ {
-		a, okA := shock.StdMoment(2 * k)
-		m, okB := shock.StdMoment(k)
-		if !(okA && okB && a-float64(m*m) > 0) {
-			continue
-		}
-		s := scale[k-1]
-		ds := (dStd(2*k) - float64(2*m*dStd(k))) / (2 * s)
-		bend := float64(smoothBend * portablemath.Pow(smoothOrderRatio, float64(cols-k)))
-		b, c := bend/s, float64(smoothEps*bend*bend)
-		db := -b * ds / s
-		x := lam[k-1] / b
-		out[k-1] = float64((float64(-(c/(b*b))*portablemath.Sinh(x)) - float64(c*lam[k-1]/(b*b*b)*portablemath.Cosh(x))) * db)
-	}
-	return out
-}
-
 // genericRowSens differentiates one maxent row p (multipliers lam, the
-// smooth policy's penalty curvature regH or nil, and the motion dReg of
-// its penalty gradient or nil) whose moment functions are z^k −
-// targets_k, given the motion of its log prior (dlogq) and of its moment
-// functions (dDev, n×L; the row's level uses the first len(lam) of
-// them). See Sensitivity.
-func genericRowSens(p, lam, regH, dReg, z, targets, dev, dlogq, dDev []float64, L int, out []float64) {
+// smooth policy's penalty curvature regH or nil) whose moment functions
+// are z^k − targets_k, given the motion of its log prior (dlogq) and of
+// its moment functions (dDev, n×L; the row's level uses the first
+// len(lam) of them). The smooth policy's penalty does not move: its
+// scales are the normal law's (stateProblem.penaltyScale). See
+// Sensitivity.
+func genericRowSens(p, lam, regH, z, targets, dev, dlogq, dDev []float64, L int, out []float64) {
 	n := len(p)
 	cols := len(lam)
 	abar := make([]float64, n)
@@ -356,9 +326,6 @@ func genericRowSens(p, lam, regH, dReg, z, targets, dev, dlogq, dDev []float64, 
 			for k := 0; k < cols; k++ {
 				grad[k] += float64(w*dev[j*cols+k]) + float64(p[j]*dDev[j*L+k])
 			}
-		}
-		for k := range dReg {
-			grad[k] += dReg[k]
 		}
 		cholSolve(chol, cols, grad, dlam)
 		ebar = 0

@@ -103,11 +103,14 @@ func maxentRowsKeep(nodes, logW []float64, law conditional, L int, match Matchin
 		order[k] = k + 1
 	}
 	pr := &stateProblem{
-		cols:   func(l int) int { return l },
-		scale:  shockScales(law.Shock, L),
-		order:  order,
-		logq:   logq,
-		ladder: fallbackLadder(L),
+		cols:  func(l int) int { return l },
+		scale: shockScales(law.Shock, L),
+		// The normal law's scales, whatever the shock: continuous in its
+		// shape parameters (see stateProblem.penaltyScale).
+		penaltyScale: shockScales(nil, L),
+		order:        order,
+		logq:         logq,
+		ladder:       fallbackLadder(L),
 		at: func(l int) ([]float64, int) {
 			fillDeviations(z, targets[:l], dev[:n*l])
 			return dev[:n*l], l

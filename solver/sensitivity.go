@@ -234,8 +234,7 @@ func regularizeCholesky(h, l []float64, L int) {
 // with respect to the mean, ρ and σ (Params "mean", "rho", "sigma") and,
 // for a Student t innovation, its degrees of freedom ("innovation.nu",
 // as a sweep names it: the grid, scaled by the stationary s.d., does not
-// move; the prior, the moment targets and, under the smooth policy, the
-// penalty's scales do). It returns ErrNoSensitivities for a baseline
+// move; the prior and the moment targets do). It returns ErrNoSensitivities for a baseline
 // method or an innovation law without a score.
 func (p AR1) Sensitivities(s Settings) (*Chain, *Sensitivity, error) {
 	if s.Method != MaxEnt {
@@ -320,7 +319,8 @@ func (p AR1) Sensitivities(s Settings) (*Chain, *Sensitivity, error) {
 // standardized points z the prior log q = log W + log s + log f(s z)
 // moves by ds/s + f'/f(s z)·z ds + ∂θ log f(s z), s the base's s.d., and
 // every moment function z^k − τ_k by −dτ_k; the points themselves do not
-// move. It fills dTrans (m×n).
+// move, nor does the smooth policy's penalty (the normal law's scales).
+// It fills dTrans (m×n).
 func innovationShapeSens(nodes []float64, law conditional, L int, trans []float64, keep *rowMultipliers, base Distribution, dTrans []float64) {
 	params, score, err := lawMotion(base)
 	if err != nil {
@@ -343,11 +343,7 @@ func innovationShapeSens(nodes []float64, law conditional, L int, trans []float6
 			u := float64(sd * z[j])
 			dlogq[j] = prm.dSD/sd + float64(score(u)*z[j]*prm.dSD) + prm.dLogPdf(u)
 		}
-		var dReg []float64
-		if keep.regH[i] != nil {
-			dReg = penaltyMotion(law.Shock, keep.lam[i], prm.dStd)
-		}
-		genericRowSens(trans[i*n:(i+1)*n], keep.lam[i], keep.regH[i], dReg, z, targets, dev, dlogq, dDev, L, dTrans[i*n:(i+1)*n])
+		genericRowSens(trans[i*n:(i+1)*n], keep.lam[i], keep.regH[i], z, targets, dev, dlogq, dDev, L, dTrans[i*n:(i+1)*n])
 	}
 	for i := 0; i < m; i++ {
 		if k := keep.mirror[i]; k >= 0 {

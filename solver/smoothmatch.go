@@ -76,9 +76,13 @@ func (m *smoothMatch) penaltyShape(pr *stateProblem, cols int) {
 	for _, o := range pr.order[:cols] {
 		top = max(top, o)
 	}
+	scale := pr.scale
+	if pr.penaltyScale != nil {
+		scale = pr.penaltyScale
+	}
 	for k := 0; k < cols; k++ {
 		bend := float64(smoothBend * portablemath.Pow(smoothOrderRatio, float64(top-pr.order[k])))
-		m.b[k] = bend / pr.scale[k]
+		m.b[k] = bend / scale[k]
 		m.c[k] = float64(smoothEps * bend * bend)
 		// The exact dual's tolerance, in the scaled units of the moment.
 		m.tol[k] = float64(dualTol * pr.scale[k])

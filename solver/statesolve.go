@@ -20,9 +20,15 @@ type stateProblem struct {
 	// scale and order describe the top level's moment functions: the
 	// standard deviation of each under the true conditional law, and its
 	// order (1 for a mean, 2 for a second moment, …). The smooth policy
-	// scales its penalty by them.
+	// scales its penalty by penaltyScale when set, else by scale.
 	scale []float64
 	order []int
+	// penaltyScale, when set, replaces scale in the smooth policy's
+	// penalty: a scale that must not depend on the law's shape, since the
+	// chain would then jump wherever a moment of the law ceases to exist
+	// (a Student t's m_2k as ν falls to 2k: scale falls back to the
+	// normal's there).
+	penaltyScale []float64
 }
 
 // stateSolution is what a policy reports for one state.
