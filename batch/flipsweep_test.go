@@ -3,6 +3,7 @@ package batch
 import (
 	"encoding/json"
 	"fmt"
+	"gridstage/internal/noderef"
 	"os"
 	"os/exec"
 	"path/filepath"
@@ -17,30 +18,6 @@ import (
 // position rotates with i, so every bit position is hit in every region
 // of a file while each byte is flipped once.
 func flipMask(i int) byte { return 1 << (i % 8) }
-
-// interop returns node and the tools/interop folder, skipping (or failing
-// under CI) when they are missing.
-func interop(t *testing.T) (node, dir string) {
-	t.Helper()
-	dir, _ = filepath.Abs(filepath.Join("..", "tools", "interop"))
-	missing := func(what string) {
-		msg := "the byte-flip sweep needs " + what + " (install with: cd tools/interop && npm ci)"
-		if os.Getenv("CI") == "true" {
-			t.Fatal(msg)
-		}
-		t.Skip(msg)
-	}
-	node, err := exec.LookPath("node")
-	if err != nil {
-		missing("node on the PATH")
-	}
-	for _, pkg := range []string{"@duckdb/node-api", "apache-arrow"} {
-		if _, err := os.Stat(filepath.Join(dir, "node_modules", pkg, "package.json")); err != nil {
-			missing("the npm package " + pkg)
-		}
-	}
-	return node, dir
-}
 
 // sweepDir is a temporary folder, kept after the test when
 // GRIDSTAGE_FLIP_DUMP names a file to list the surviving copies in (for
@@ -103,7 +80,7 @@ func TestFlipSweepAgainstStandardReaders(t *testing.T) {
 	if testing.Short() {
 		t.Skip("flips every byte of ten files")
 	}
-	node, interopDir := interop(t)
+	node, interopDir := noderef.Interop(t, "the byte-flip sweep")
 	var (
 		mu    sync.Mutex
 		pairs []flipPair

@@ -2,8 +2,8 @@ package formats
 
 import (
 	"encoding/json"
+	"gridstage/internal/noderef"
 	"math"
-	"os"
 	"os/exec"
 	"path/filepath"
 	"strconv"
@@ -12,31 +12,6 @@ import (
 
 	"gridstage/solver"
 )
-
-// interopScript locates tools/interop/check.mjs and its installed packages. When
-// node or the packages are missing the test is skipped, except under CI
-// (CI=true), where .ci/run installs them and their absence is a failure.
-func interopScript(t *testing.T) (node, script string) {
-	t.Helper()
-	script, _ = filepath.Abs(filepath.Join("..", "tools", "interop", "check.mjs"))
-	missing := func(what string) {
-		msg := "interoperability check needs " + what + " (install with: cd tools/interop && npm ci)"
-		if os.Getenv("CI") == "true" {
-			t.Fatal(msg)
-		}
-		t.Skip(msg)
-	}
-	node, err := exec.LookPath("node")
-	if err != nil {
-		missing("node on the PATH")
-	}
-	for _, pkg := range []string{"@duckdb/node-api", "apache-arrow"} {
-		if _, err := os.Stat(filepath.Join(filepath.Dir(script), "node_modules", pkg, "package.json")); err != nil {
-			missing("the npm package " + pkg)
-		}
-	}
-	return node, script
-}
 
 type interopFile struct {
 	Path             string            `json:"path"`
@@ -63,7 +38,8 @@ type interopFile struct {
 // for bit (a float64 passes through Parquet, DuckDB and JSON unchanged),
 // and so must a derivative dP/dρ read from the sensitivities table alone.
 func TestInteropDuckDBArrow(t *testing.T) {
-	node, script := interopScript(t)
+	node, tools := noderef.Interop(t, "the interoperability check")
+	script := filepath.Join(tools, "check.mjs")
 	set := &Set{Header: Header{Run: "interop", Process: "wages", Kind: "ar1", Method: "maxent", Dim: 1, Params: []string{"rho"}}}
 	for i, rho := range []float64{0.9, 0.5} {
 		p := solver.AR1{Rho: rho, Sigma: 0.1}
@@ -169,7 +145,8 @@ func TestInteropDuckDBArrow(t *testing.T) {
 // fail: one probability replaced by 1 − p must be reported by DuckDB's and
 // apache-arrow's reading alike.
 func TestInteropDetectsDamage(t *testing.T) {
-	node, script := interopScript(t)
+	node, tools := noderef.Interop(t, "the interoperability check")
+	script := filepath.Join(tools, "check.mjs")
 	for _, f := range []Format{Parquet, Arrow} {
 		_, res := writeSample(t, f)
 		path := res.Files[0].Path

@@ -1,6 +1,7 @@
 package main
 
 import (
+	"gridstage/internal/noderef"
 	"os"
 	"os/exec"
 	"path/filepath"
@@ -10,30 +11,6 @@ import (
 	"gridstage/formats"
 )
 
-// interopTools returns node and the tools/interop folder, skipping (or
-// failing under CI) when they are missing.
-func interopTools(t *testing.T) (node, dir string) {
-	t.Helper()
-	dir, _ = filepath.Abs(filepath.Join("..", "..", "tools", "interop"))
-	missing := func(what string) {
-		msg := "this test needs " + what + " (install with: cd tools/interop && npm ci)"
-		if os.Getenv("CI") == "true" {
-			t.Fatal(msg)
-		}
-		t.Skip(msg)
-	}
-	node, err := exec.LookPath("node")
-	if err != nil {
-		missing("node on the PATH")
-	}
-	for _, pkg := range []string{"@duckdb/node-api", "apache-arrow"} {
-		if _, err := os.Stat(filepath.Join(dir, "node_modules", pkg, "package.json")); err != nil {
-			missing("the npm package " + pkg)
-		}
-	}
-	return node, dir
-}
-
 // A file rewritten by another writer — DuckDB's COPY for Parquet (values
 // kept, key/value metadata dropped), apache-arrow for Arrow IPC (its file
 // writer leaves out the schema message a stream reader starts from) — is
@@ -41,7 +18,7 @@ func interopTools(t *testing.T) (node, dir string) {
 // own, with or without --values-only, never 2 (bad usage), which is kept
 // for paths that are not gridstage output at all (README, "Exit status").
 func TestVerifyFileRewrittenByAnotherWriter(t *testing.T) {
-	node, tools := interopTools(t)
+	node, tools := noderef.Interop(t, "this test")
 	for _, f := range []formats.Format{formats.Parquet, formats.Arrow} {
 		dir := writeOutput(t, f)
 		name := "wages.states." + f.String()
